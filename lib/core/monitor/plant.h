@@ -1,0 +1,68 @@
+// plant.h — the core's front door: routes records to one LineMonitor per line.
+//
+// Both heftd and `heft replay` drive a Plant, so a replayed feed gives the very
+// findings the daemon gave. Pure: time comes in with the records (or through
+// AdvanceTo), no I/O, no clocks. Not thread-safe: owned by one ingest strand.
+#pragma once
+
+#include <cstdint>
+#include <memory>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "core/model/finding.h"
+#include "core/monitor/line_settings.h"
+#include "core/record/record_view.h"
+
+namespace heft {
+
+class LineMonitor;
+
+// A line's state at a glance, for status pages, metrics and checkpoints.
+struct LineSnapshot {
+  std::string line;
+  std::int64_t packs = 0;            // packs accepted since the daemon started
+  std::int64_t last_time_ms = 0;
+  bool settling = true;              // still learning or settling after a start
+  double level_g = 0.0;              // rolling mean
+  double sigma_g = 0.0;              // rolling short-term sigma
+  double baseline_level_g = 0.0;     // in-control level learnt after the start
+  double baseline_sigma_g = 0.0;
+  int open_findings = 0;             // findings raised and not yet cleared
+};
+
+class Plant {
+ public:
+  explicit Plant(PlantSettings settings);
+  ~Plant();
+  Plant(const Plant&) = delete;
+  Plant& operator=(const Plant&) = delete;
+
+  enum class Accepted { kYes, kTooManyLines };
+
+  // Routes one parsed record. `index` is its 0-based data-record index in its
+  // source; `arrival_ms` is used when the record carries no time. Findings are
+  // appended to *out.
+  Accepted Accept(const RecordView& record, std::int64_t index, std::int64_t arrival_ms,
+                  std::vector<Finding>* out);
+
+  // Time has passed with no record (daemon timer). Raises `silence` for lines
+  // that have been quiet longer than their gap. `index` is the record index to
+  // attach to such findings (the next record's index in the source).
+  void AdvanceTo(std::int64_t now_ms, std::int64_t index, std::vector<Finding>* out);
+
+  std::vector<LineSnapshot> Snapshot() const;
+  std::size_t line_count() const { return monitors_.size(); }
+  const LineSettings& SettingsFor(std::string_view line) const;
+
+ private:
+  LineMonitor* FindOrCreate(std::string_view line);
+
+  PlantSettings settings_;
+  std::vector<std::unique_ptr<LineMonitor>> monitors_;  // in order of first appearance
+  std::vector<std::pair<std::string, LineMonitor*>> index_;  // sorted by line id
+  std::int64_t earliest_silence_deadline_ms_ = INT64_MAX;
+};
+
+}  // namespace heft

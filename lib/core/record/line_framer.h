@@ -1,0 +1,102 @@
+// line_framer.h — splits a byte stream into records at LF, CR or CRLF.
+//
+// Pure and incremental: feed it chunks of any size; it calls back with each
+// complete record (terminator removed). A record longer than the maximum is
+// discarded up to its next terminator and reported once. Empty records (blank
+// lines, the LF of a CRLF split across chunks) are not reported. One framer
+// per stream; not thread-safe.
+#pragma once
+
+#include <cstddef>
+#include <string>
+#include <string_view>
+
+namespace heft {
+
+class LineFramer {
+ public:
+  static constexpr std::size_t kDefaultMaxRecord = 4096;  // bytes, without terminator
+
+  explicit LineFramer(std::size_t max_record = kDefaultMaxRecord) : max_record_(max_record) {}
+
+  // Calls on_record(std::string_view) for each complete record and
+  // on_too_long(std::size_t dropped_bytes) once per over-long record, when its
+  // terminator arrives. Views passed to on_record are valid during the call only.
+  template <class OnRecord, class OnTooLong>
+  void Feed(std::string_view bytes, OnRecord&& on_record, OnTooLong&& on_too_long);
+
+  // At end of stream: a pending unterminated record is delivered as if terminated.
+  template <class OnRecord, class OnTooLong>
+  void Finish(OnRecord&& on_record, OnTooLong&& on_too_long);
+
+  std::size_t pending_bytes() const { return partial_.size(); }
+
+ private:
+  std::size_t max_record_;
+  std::string partial_;       // bytes of an unterminated record carried across chunks
+  std::size_t dropping_ = 0;  // >0 while discarding an over-long record (bytes so far)
+  bool last_was_cr_ = false;  // to swallow the LF of a CRLF split across chunks
+};
+
+template <class OnRecord, class OnTooLong>
+void LineFramer::Feed(std::string_view bytes, OnRecord&& on_record, OnTooLong&& on_too_long) {
+  std::size_t pos = 0;
+  const std::size_t n = bytes.size();
+  if (last_was_cr_ && n > 0 && bytes[0] == '\n') pos = 1;
+  last_was_cr_ = false;
+  while (pos < n) {
+    std::size_t end = pos;
+    while (end < n && bytes[end] != '\n' && bytes[end] != '\r') ++end;
+    const std::string_view piece = bytes.substr(pos, end - pos);
+    if (end == n) {  // no terminator in the rest of this chunk: carry it
+      if (dropping_ > 0) {
+        dropping_ += piece.size();
+      } else if (partial_.size() + piece.size() > max_record_) {
+        dropping_ = partial_.size() + piece.size();
+        partial_.clear();
+      } else {
+        partial_.append(piece);
+      }
+      return;
+    }
+    if (dropping_ > 0) {
+      on_too_long(dropping_ + piece.size());
+      dropping_ = 0;
+    } else if (!partial_.empty()) {
+      if (partial_.size() + piece.size() > max_record_) {
+        on_too_long(partial_.size() + piece.size());
+      } else {
+        partial_.append(piece);
+        on_record(std::string_view(partial_));
+      }
+      partial_.clear();
+    } else if (piece.size() > max_record_) {
+      on_too_long(piece.size());
+    } else if (!piece.empty()) {
+      on_record(piece);
+    }
+    // Swallow the LF of a CRLF pair, even when it arrives in the next chunk.
+    if (bytes[end] == '\r') {
+      if (end + 1 < n) {
+        if (bytes[end + 1] == '\n') ++end;
+      } else {
+        last_was_cr_ = true;
+      }
+    }
+    pos = end + 1;
+  }
+}
+
+template <class OnRecord, class OnTooLong>
+void LineFramer::Finish(OnRecord&& on_record, OnTooLong&& on_too_long) {
+  if (dropping_ > 0) {
+    on_too_long(dropping_);
+  } else if (!partial_.empty()) {
+    on_record(std::string_view(partial_));
+  }
+  partial_.clear();
+  dropping_ = 0;
+  last_was_cr_ = false;
+}
+
+}  // namespace heft
