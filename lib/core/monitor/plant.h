@@ -6,6 +6,7 @@
 #pragma once
 
 #include <cstdint>
+#include <climits>
 #include <memory>
 #include <string>
 #include <string_view>
@@ -57,11 +58,17 @@ class Plant {
   const LineSettings& SettingsFor(std::string_view line) const;
 
  private:
-  LineMonitor* FindOrCreate(std::string_view line);
+  struct Entry {
+    std::unique_ptr<LineMonitor> monitor;
+    std::int64_t last_arrival_ms = 0;  // arrival clock, for AdvanceTo
+  };
+  Entry* FindOrCreate(std::string_view line);
 
   PlantSettings settings_;
-  std::vector<std::unique_ptr<LineMonitor>> monitors_;  // in order of first appearance
-  std::vector<std::pair<std::string, LineMonitor*>> index_;  // sorted by line id
+  std::vector<Entry> monitors_;                       // in order of first appearance
+  std::vector<std::pair<std::string, std::size_t>> index_;  // sorted by line id → monitors_
+  std::size_t last_used_ = SIZE_MAX;                  // feeds often repeat a line: skip the search
+  std::int64_t record_clock_ms_ = INT64_MIN;          // latest record time seen
   std::int64_t earliest_silence_deadline_ms_ = INT64_MAX;
 };
 
