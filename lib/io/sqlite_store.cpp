@@ -1,0 +1,620 @@
+// sqlite_store.cpp — SqliteStore over the raw sqlite3 C API.
+//
+// Layout of the file: schema migrations, small helpers (errors, statements,
+// transactions), opening, then the Store operations. All SQL takes its values
+// through bound parameters.
+#include "io/sqlite_store.h"
+
+#include <sqlite3.h>
+
+#include <algorithm>
+#include <chrono>
+#include <filesystem>
+#include <iterator>
+#include <limits>
+#include <string_view>
+#include <unordered_map>
+#include <utility>
+
+#include <fmt/core.h>
+
+namespace heft {
+namespace {
+
+// Forward migrations: entry i brings a database from version i to i + 1. Each
+// runs in its own transaction together with the user_version bump. Never edit a
+// released entry; append a new one and raise kSchemaVersion.
+struct Migration {
+  int version;      // the schema version after this script
+  const char* sql;  // one or more statements
+};
+
+constexpr Migration kMigrations[] = {
+    {1, R"sql(
+CREATE TABLE lines (
+  line       TEXT PRIMARY KEY,
+  product    TEXT NOT NULL DEFAULT '',
+  nominal_g  REAL,
+  target_g   REAL,
+  heads      INTEGER NOT NULL DEFAULT 0,
+  updated_ms INTEGER NOT NULL
+);
+CREATE TABLE events (
+  id           INTEGER PRIMARY KEY,
+  transition   TEXT NOT NULL CHECK (transition IN ('raised', 'cleared')),
+  kind         TEXT NOT NULL,
+  severity     TEXT NOT NULL,
+  line         TEXT NOT NULL,
+  record_index INTEGER NOT NULL,
+  at_ms        INTEGER NOT NULL,
+  onset_index  INTEGER,
+  onset_ms     INTEGER,
+  end_index    INTEGER,
+  size_g       REAL,
+  size_sigma   REAL,
+  level_g      REAL,
+  period_packs REAL,
+  head         INTEGER,
+  detector     TEXT NOT NULL DEFAULT '',
+  message      TEXT NOT NULL DEFAULT '',
+  source       TEXT NOT NULL DEFAULT '',
+  recorded_ms  INTEGER NOT NULL
+);
+-- head is NULL when the feed named none; status is PackStatus as 0 ok, 1 rejected, 2 error.
+CREATE TABLE samples (
+  line         TEXT NOT NULL,
+  source       TEXT NOT NULL,
+  record_index INTEGER NOT NULL,
+  time_ms      INTEGER NOT NULL,
+  grams        REAL NOT NULL,
+  head         INTEGER,
+  status       INTEGER NOT NULL CHECK (status BETWEEN 0 AND 2)
+);
+CREATE INDEX samples_line_time ON samples(line, time_ms);
+)sql"},
+    // Version 2: event look-ups by line/time and by kind (what `heft events`
+    // filters on) no longer scan the table; a meta table for facts about the file.
+    {2, R"sql(
+CREATE INDEX events_line_at ON events(line, at_ms);
+CREATE INDEX events_kind ON events(kind);
+CREATE TABLE meta (
+  key   TEXT PRIMARY KEY,
+  value TEXT
+);
+INSERT INTO meta(key, value) VALUES ('created_by', 'heft');
+)sql"},
+};
+static_assert(std::size(kMigrations) == SqliteStore::kSchemaVersion,
+              "one migration per schema version");
+
+constexpr int kPruneBatchRows = 5000;
+constexpr int kBusyTimeoutMs = 5000;
+
+std::int64_t WallClockMs() {
+  return std::chrono::duration_cast<std::chrono::milliseconds>(
+             std::chrono::system_clock::now().time_since_epoch())
+      .count();
+}
+
+std::optional<Severity> SeverityFromName(std::string_view name) {
+  for (Severity s : {Severity::kInfo, Severity::kWarning, Severity::kAlarm}) {
+    if (SeverityName(s) == name) return s;
+  }
+  return std::nullopt;
+}
+
+std::string_view ColumnText(sqlite3_stmt* stmt, int col) {
+  const unsigned char* text = sqlite3_column_text(stmt, col);
+  if (text == nullptr) return {};
+  return {reinterpret_cast<const char*>(text),
+          static_cast<std::size_t>(sqlite3_column_bytes(stmt, col))};
+}
+
+std::optional<std::int64_t> ColumnOptInt(sqlite3_stmt* stmt, int col) {
+  if (sqlite3_column_type(stmt, col) == SQLITE_NULL) return std::nullopt;
+  return sqlite3_column_int64(stmt, col);
+}
+
+std::optional<double> ColumnOptDouble(sqlite3_stmt* stmt, int col) {
+  if (sqlite3_column_type(stmt, col) == SQLITE_NULL) return std::nullopt;
+  return sqlite3_column_double(stmt, col);
+}
+
+// The bind helpers return the sqlite result code; callers OR-check them.
+int BindText(sqlite3_stmt* stmt, int idx, std::string_view text) {
+  // SQLITE_STATIC: the text outlives the step; bindings are cleared after each use.
+  return sqlite3_bind_text64(stmt, idx, text.data(), text.size(), SQLITE_STATIC, SQLITE_UTF8);
+}
+
+int BindOptInt(sqlite3_stmt* stmt, int idx, std::optional<std::int64_t> value) {
+  return value ? sqlite3_bind_int64(stmt, idx, *value) : sqlite3_bind_null(stmt, idx);
+}
+
+int BindOptDouble(sqlite3_stmt* stmt, int idx, std::optional<double> value) {
+  return value ? sqlite3_bind_double(stmt, idx, *value) : sqlite3_bind_null(stmt, idx);
+}
+
+// One connection with its statement cache. SqliteStore::Impl is this; the
+// helpers below work on it directly.
+struct Connection {
+  std::string path;
+  SqliteStore::Mode mode = SqliteStore::Mode::kReadWrite;
+  sqlite3* db = nullptr;
+  int version = 0;
+  std::unordered_map<std::string, sqlite3_stmt*> statements;  // cache, keyed by SQL text
+
+  ~Connection() {
+    for (auto& [sql, stmt] : statements) sqlite3_finalize(stmt);
+    if (db != nullptr) sqlite3_close_v2(db);
+  }
+
+  // "PATH: OPERATION: sqlite message (code N)" from the connection's last error.
+  Status Error(std::string_view operation) const {
+    if (db == nullptr) return Status::Error(fmt::format("{}: {}: out of memory", path, operation));
+    const int code = sqlite3_extended_errcode(db);
+    if ((code & 0xff) == SQLITE_NOTADB) {
+      return Status::Error(fmt::format("{}: {}: not a heft database ({}, code {})", path, operation,
+                                       sqlite3_errmsg(db), code));
+    }
+    return Status::Error(
+        fmt::format("{}: {}: {} (code {})", path, operation, sqlite3_errmsg(db), code));
+  }
+
+  Status Exec(const char* sql, std::string_view operation) {
+    if (sqlite3_exec(db, sql, nullptr, nullptr, nullptr) != SQLITE_OK) return Error(operation);
+    return Status::Ok();
+  }
+
+  // Returns the cached prepared statement for `sql`, preparing it on first use.
+  Status Prepare(const std::string& sql, sqlite3_stmt** out) {
+    auto it = statements.find(sql);
+    if (it != statements.end()) {
+      *out = it->second;
+      return Status::Ok();
+    }
+    sqlite3_stmt* stmt = nullptr;
+    if (sqlite3_prepare_v3(db, sql.c_str(), static_cast<int>(sql.size()), SQLITE_PREPARE_PERSISTENT,
+                           &stmt, nullptr) != SQLITE_OK) {
+      sqlite3_finalize(stmt);
+      return Error("preparing statement");
+    }
+    statements.emplace(sql, stmt);
+    *out = stmt;
+    return Status::Ok();
+  }
+
+  Status ReadUserVersion(int* version) {
+    sqlite3_stmt* stmt = nullptr;
+    // Not cached: only used while opening and migrating.
+    if (sqlite3_prepare_v2(db, "PRAGMA user_version", -1, &stmt, nullptr) != SQLITE_OK) {
+      sqlite3_finalize(stmt);
+      return Error("reading schema version");
+    }
+    const int rc = sqlite3_step(stmt);
+    if (rc != SQLITE_ROW) {
+      Status status = Error("reading schema version");
+      sqlite3_finalize(stmt);
+      return status;
+    }
+    *version = sqlite3_column_int(stmt, 0);
+    sqlite3_finalize(stmt);
+    return Status::Ok();
+  }
+
+  Status CountTables(int* count) {
+    sqlite3_stmt* stmt = nullptr;
+    if (sqlite3_prepare_v2(db, "SELECT count(*) FROM sqlite_master", -1, &stmt, nullptr) !=
+            SQLITE_OK ||
+        sqlite3_step(stmt) != SQLITE_ROW) {
+      Status status = Error("reading schema");
+      sqlite3_finalize(stmt);
+      return status;
+    }
+    *count = sqlite3_column_int(stmt, 0);
+    sqlite3_finalize(stmt);
+    return Status::Ok();
+  }
+
+  Status RequireWritable(std::string_view operation) const {
+    if (mode == SqliteStore::Mode::kReadOnly) {
+      return Status::Error(fmt::format("{}: {}: database opened read-only", path, operation));
+    }
+    return Status::Ok();
+  }
+
+  Status Migrate(int target);
+};
+
+// Resets a cached statement and drops its bindings when the scope ends, so
+// SQLITE_STATIC text bindings never outlive their strings.
+class StatementUse {
+ public:
+  explicit StatementUse(sqlite3_stmt* stmt) : stmt_(stmt) {}
+  ~StatementUse() {
+    sqlite3_reset(stmt_);
+    sqlite3_clear_bindings(stmt_);
+  }
+  StatementUse(const StatementUse&) = delete;
+  StatementUse& operator=(const StatementUse&) = delete;
+
+ private:
+  sqlite3_stmt* stmt_;
+};
+
+// BEGIN IMMEDIATE on construction via Begin(); ROLLBACK unless committed.
+class Transaction {
+ public:
+  explicit Transaction(Connection& impl) : impl_(impl) {}
+  ~Transaction() {
+    if (open_) sqlite3_exec(impl_.db, "ROLLBACK", nullptr, nullptr, nullptr);
+  }
+  Transaction(const Transaction&) = delete;
+  Transaction& operator=(const Transaction&) = delete;
+
+  Status Begin(std::string_view operation) {
+    Status status = impl_.Exec("BEGIN IMMEDIATE", fmt::format("{}: begin", operation));
+    open_ = status.ok();
+    return status;
+  }
+  Status Commit(std::string_view operation) {
+    Status status = impl_.Exec("COMMIT", fmt::format("{}: commit", operation));
+    // A failed COMMIT may leave the transaction open; the destructor rolls back.
+    if (status.ok() || sqlite3_get_autocommit(impl_.db)) open_ = false;
+    return status;
+  }
+
+ private:
+  Connection& impl_;
+  bool open_ = false;
+};
+
+Status Connection::Migrate(int target) {
+  for (const Migration& migration : kMigrations) {
+    if (migration.version <= version || migration.version > target) continue;
+    const std::string operation = fmt::format("migrating schema to version {}", migration.version);
+    Transaction txn(*this);
+    if (Status s = txn.Begin(operation); !s.ok()) return s;
+    // Another process may have migrated while we waited for the write lock.
+    int current = 0;
+    if (Status s = ReadUserVersion(&current); !s.ok()) return s;
+    if (current >= migration.version) {
+      version = current;
+      if (Status s = txn.Commit(operation); !s.ok()) return s;
+      continue;
+    }
+    if (Status s = Exec(migration.sql, operation); !s.ok()) return s;
+    const std::string bump = fmt::format("PRAGMA user_version = {}", migration.version);
+    if (Status s = Exec(bump.c_str(), operation); !s.ok()) return s;
+    if (Status s = txn.Commit(operation); !s.ok()) return s;
+    version = migration.version;
+  }
+  return Status::Ok();
+}
+
+// Opens the connection and checks the schema version; read-write connections
+// are configured and migrated up to `target`.
+Status OpenConnection(const std::string& path, SqliteStore::Mode mode, int target,
+                      Connection* impl) {
+  impl->path = path;
+  impl->mode = mode;
+  const bool read_only = mode == SqliteStore::Mode::kReadOnly;
+  if (read_only) {
+    std::error_code ec;
+    if (!std::filesystem::exists(path, ec)) return Status::Error("no database at " + path);
+  }
+  const int flags =
+      (read_only ? SQLITE_OPEN_READONLY : SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE) |
+      SQLITE_OPEN_NOMUTEX;
+  if (sqlite3_open_v2(path.c_str(), &impl->db, flags, nullptr) != SQLITE_OK) {
+    return impl->Error(read_only ? "opening read-only" : "opening");
+  }
+  sqlite3_extended_result_codes(impl->db, 1);
+  sqlite3_busy_timeout(impl->db, kBusyTimeoutMs);
+
+  int version = 0;
+  if (Status s = impl->ReadUserVersion(&version); !s.ok()) return s;
+  impl->version = version;
+  if (version > SqliteStore::kSchemaVersion) {
+    return Status::Error(
+        fmt::format("{}: database schema version {} is newer than this heft ({}); upgrade heft",
+                    path, version, SqliteStore::kSchemaVersion));
+  }
+  int tables = 0;
+  if (version == 0) {
+    if (Status s = impl->CountTables(&tables); !s.ok()) return s;
+    if (tables > 0) {
+      return Status::Error(
+          fmt::format("{}: not a heft database (it has tables but no heft schema version)", path));
+    }
+  }
+
+  if (read_only) {
+    if (version == 0) {
+      return Status::Error(fmt::format("{}: not a heft database (empty, no heft schema)", path));
+    }
+    return Status::Ok();
+  }
+
+  // auto_vacuum can only be chosen before the first table exists.
+  if (version == 0 && tables == 0) {
+    if (Status s = impl->Exec("PRAGMA auto_vacuum = INCREMENTAL", "setting auto_vacuum"); !s.ok())
+      return s;
+  }
+  if (Status s = impl->Exec("PRAGMA journal_mode = WAL", "setting WAL journal mode"); !s.ok())
+    return s;
+  if (Status s = impl->Exec("PRAGMA synchronous = NORMAL", "setting synchronous"); !s.ok())
+    return s;
+  return impl->Migrate(target);
+}
+
+}  // namespace
+
+struct SqliteStore::Impl : Connection {};
+
+SqliteStore::SqliteStore(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
+SqliteStore::~SqliteStore() = default;
+
+Status SqliteStore::Open(const std::string& path, Mode mode, std::unique_ptr<SqliteStore>* out) {
+  out->reset();
+  auto impl = std::make_unique<Impl>();
+  if (Status s = OpenConnection(path, mode, kSchemaVersion, impl.get()); !s.ok()) return s;
+  out->reset(new SqliteStore(std::move(impl)));
+  return Status::Ok();
+}
+
+Status SqliteStore::CreateAtVersion(const std::string& path, int version) {
+  if (version < 1 || version > kSchemaVersion) {
+    return Status::Error(fmt::format("{}: no schema version {} (this heft knows 1..{})", path,
+                                     version, kSchemaVersion));
+  }
+  Connection connection;
+  return OpenConnection(path, Mode::kReadWrite, version, &connection);
+}
+
+int SqliteStore::schema_version() const { return impl_->version; }
+
+Status SqliteStore::UpsertLines(const std::vector<LineRow>& lines) {
+  constexpr std::string_view kOp = "upserting lines";
+  if (Status s = impl_->RequireWritable(kOp); !s.ok()) return s;
+  if (lines.empty()) return Status::Ok();
+  sqlite3_stmt* stmt = nullptr;
+  if (Status s =
+          impl_->Prepare("INSERT INTO lines(line, product, nominal_g, target_g, heads, updated_ms) "
+                         "VALUES (?1, ?2, ?3, ?4, ?5, ?6) "
+                         "ON CONFLICT(line) DO UPDATE SET product = excluded.product, "
+                         "nominal_g = excluded.nominal_g, target_g = excluded.target_g, "
+                         "heads = excluded.heads, updated_ms = excluded.updated_ms",
+                         &stmt);
+      !s.ok()) {
+    return s;
+  }
+  const std::int64_t now_ms = WallClockMs();
+  Transaction txn(*impl_);
+  if (Status s = txn.Begin(kOp); !s.ok()) return s;
+  for (const LineRow& row : lines) {
+    StatementUse use(stmt);
+    int rc = BindText(stmt, 1, row.line) | BindText(stmt, 2, row.product) |
+             BindOptDouble(stmt, 3, row.nominal_g) | BindOptDouble(stmt, 4, row.target_g) |
+             sqlite3_bind_int(stmt, 5, row.heads) | sqlite3_bind_int64(stmt, 6, now_ms);
+    if (rc != SQLITE_OK || sqlite3_step(stmt) != SQLITE_DONE) {
+      return impl_->Error(fmt::format("{}: line '{}'", kOp, row.line));
+    }
+  }
+  return txn.Commit(kOp);
+}
+
+Status SqliteStore::WriteBatch(const std::vector<EventRow>& events,
+                               const std::vector<SampleRow>& samples) {
+  constexpr std::string_view kOp = "writing batch";
+  if (Status s = impl_->RequireWritable(kOp); !s.ok()) return s;
+  if (events.empty() && samples.empty()) return Status::Ok();
+  sqlite3_stmt* event_stmt = nullptr;
+  sqlite3_stmt* sample_stmt = nullptr;
+  if (Status s = impl_->Prepare(
+          "INSERT INTO events(transition, kind, severity, line, record_index, at_ms, "
+          "onset_index, onset_ms, end_index, size_g, size_sigma, level_g, period_packs, head, "
+          "detector, message, source, recorded_ms) "
+          "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, "
+          "?18)",
+          &event_stmt);
+      !s.ok()) {
+    return s;
+  }
+  if (Status s = impl_->Prepare(
+          "INSERT INTO samples(line, source, record_index, time_ms, grams, head, status) "
+          "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7)",
+          &sample_stmt);
+      !s.ok()) {
+    return s;
+  }
+
+  Transaction txn(*impl_);
+  if (Status s = txn.Begin(kOp); !s.ok()) return s;
+  for (std::size_t i = 0; i < events.size(); ++i) {
+    const EventRow& row = events[i];
+    const Finding& f = row.finding;
+    StatementUse use(event_stmt);
+    std::optional<std::int64_t> head;
+    if (f.head) head = *f.head;
+    int rc =
+        BindText(event_stmt, 1, TransitionName(f.transition)) |
+        BindText(event_stmt, 2, KindName(f.kind)) |
+        BindText(event_stmt, 3, SeverityName(f.severity)) | BindText(event_stmt, 4, f.line) |
+        sqlite3_bind_int64(event_stmt, 5, f.at) | sqlite3_bind_int64(event_stmt, 6, f.at_time_ms) |
+        BindOptInt(event_stmt, 7, f.onset) | BindOptInt(event_stmt, 8, f.onset_time_ms) |
+        BindOptInt(event_stmt, 9, f.end) | BindOptDouble(event_stmt, 10, f.size_g) |
+        BindOptDouble(event_stmt, 11, f.size_sigma) | BindOptDouble(event_stmt, 12, f.level_g) |
+        BindOptDouble(event_stmt, 13, f.period_packs) | BindOptInt(event_stmt, 14, head) |
+        BindText(event_stmt, 15, f.detector) | BindText(event_stmt, 16, row.message) |
+        BindText(event_stmt, 17, row.source) | sqlite3_bind_int64(event_stmt, 18, row.recorded_ms);
+    if (rc != SQLITE_OK || sqlite3_step(event_stmt) != SQLITE_DONE) {
+      return impl_->Error(fmt::format("{}: event {} of {}", kOp, i + 1, events.size()));
+    }
+  }
+  for (std::size_t i = 0; i < samples.size(); ++i) {
+    const SampleRow& row = samples[i];
+    StatementUse use(sample_stmt);
+    std::optional<std::int64_t> head;
+    if (row.head != kNoHead) head = row.head;
+    int rc = BindText(sample_stmt, 1, row.line) | BindText(sample_stmt, 2, row.source) |
+             sqlite3_bind_int64(sample_stmt, 3, row.record_index) |
+             sqlite3_bind_int64(sample_stmt, 4, row.time_ms) |
+             sqlite3_bind_double(sample_stmt, 5, row.grams) | BindOptInt(sample_stmt, 6, head) |
+             sqlite3_bind_int(sample_stmt, 7, static_cast<int>(row.status));
+    if (rc != SQLITE_OK || sqlite3_step(sample_stmt) != SQLITE_DONE) {
+      return impl_->Error(fmt::format("{}: sample {} of {}", kOp, i + 1, samples.size()));
+    }
+  }
+  return txn.Commit(kOp);
+}
+
+Status SqliteStore::QueryEvents(const EventQuery& query, std::vector<EventRow>* out) {
+  constexpr std::string_view kOp = "querying events";
+  out->clear();
+  // Only the shape of the SQL depends on which filters are set (one cached
+  // statement per shape); the values are always bound.
+  std::string sql =
+      "SELECT id, transition, kind, severity, line, record_index, at_ms, onset_index, onset_ms, "
+      "end_index, size_g, size_sigma, level_g, period_packs, head, detector, message, source, "
+      "recorded_ms FROM events WHERE 1";
+  if (query.line) sql += " AND line = ?1";
+  if (query.kind) sql += " AND kind = ?2";
+  if (query.since_ms) sql += " AND at_ms >= ?3";
+  if (query.until_ms) sql += " AND at_ms < ?4";
+  sql += " ORDER BY id";
+  if (query.limit > 0) sql += " LIMIT ?5";
+  sqlite3_stmt* stmt = nullptr;
+  if (Status s = impl_->Prepare(sql, &stmt); !s.ok()) return s;
+  StatementUse use(stmt);
+  int rc = SQLITE_OK;
+  if (query.line) rc |= BindText(stmt, 1, *query.line);
+  if (query.kind) rc |= BindText(stmt, 2, KindName(*query.kind));
+  if (query.since_ms) rc |= sqlite3_bind_int64(stmt, 3, *query.since_ms);
+  if (query.until_ms) rc |= sqlite3_bind_int64(stmt, 4, *query.until_ms);
+  if (query.limit > 0) {
+    const auto max = static_cast<std::size_t>(std::numeric_limits<std::int64_t>::max());
+    rc |= sqlite3_bind_int64(stmt, 5, static_cast<std::int64_t>(std::min(query.limit, max)));
+  }
+  if (rc != SQLITE_OK) return impl_->Error(kOp);
+
+  while (true) {
+    rc = sqlite3_step(stmt);
+    if (rc == SQLITE_DONE) break;
+    if (rc != SQLITE_ROW) return impl_->Error(kOp);
+    const std::int64_t id = sqlite3_column_int64(stmt, 0);
+    EventRow row;
+    Finding& f = row.finding;
+    const std::string_view transition = ColumnText(stmt, 1);
+    if (transition == TransitionName(Transition::kRaised)) {
+      f.transition = Transition::kRaised;
+    } else if (transition == TransitionName(Transition::kCleared)) {
+      f.transition = Transition::kCleared;
+    } else {
+      return Status::Error(fmt::format("{}: {}: event {} has unknown transition '{}'", impl_->path,
+                                       kOp, id, transition));
+    }
+    const std::optional<FindingKind> kind = KindFromName(ColumnText(stmt, 2));
+    if (!kind) {
+      return Status::Error(fmt::format("{}: {}: event {} has unknown kind '{}'", impl_->path, kOp,
+                                       id, ColumnText(stmt, 2)));
+    }
+    f.kind = *kind;
+    const std::optional<Severity> severity = SeverityFromName(ColumnText(stmt, 3));
+    if (!severity) {
+      return Status::Error(fmt::format("{}: {}: event {} has unknown severity '{}'", impl_->path,
+                                       kOp, id, ColumnText(stmt, 3)));
+    }
+    f.severity = *severity;
+    f.line = std::string(ColumnText(stmt, 4));
+    f.at = sqlite3_column_int64(stmt, 5);
+    f.at_time_ms = sqlite3_column_int64(stmt, 6);
+    f.onset = ColumnOptInt(stmt, 7);
+    f.onset_time_ms = ColumnOptInt(stmt, 8);
+    f.end = ColumnOptInt(stmt, 9);
+    f.size_g = ColumnOptDouble(stmt, 10);
+    f.size_sigma = ColumnOptDouble(stmt, 11);
+    f.level_g = ColumnOptDouble(stmt, 12);
+    f.period_packs = ColumnOptDouble(stmt, 13);
+    if (const auto head = ColumnOptInt(stmt, 14)) f.head = static_cast<int>(*head);
+    f.detector = std::string(ColumnText(stmt, 15));
+    row.message = std::string(ColumnText(stmt, 16));
+    row.source = std::string(ColumnText(stmt, 17));
+    row.recorded_ms = sqlite3_column_int64(stmt, 18);
+    out->push_back(std::move(row));
+  }
+  return Status::Ok();
+}
+
+Status SqliteStore::CountSamples(const std::string& line, std::int64_t* count) {
+  constexpr std::string_view kOp = "counting samples";
+  // An empty line id counts the samples of all lines (same as MemoryStore).
+  sqlite3_stmt* stmt = nullptr;
+  if (Status s = impl_->Prepare(line.empty() ? "SELECT count(*) FROM samples"
+                                             : "SELECT count(*) FROM samples WHERE line = ?1",
+                                &stmt);
+      !s.ok()) {
+    return s;
+  }
+  StatementUse use(stmt);
+  if (!line.empty() && BindText(stmt, 1, line) != SQLITE_OK) return impl_->Error(kOp);
+  if (sqlite3_step(stmt) != SQLITE_ROW) return impl_->Error(kOp);
+  *count = sqlite3_column_int64(stmt, 0);
+  return Status::Ok();
+}
+
+Status SqliteStore::PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) {
+  constexpr std::string_view kOp = "pruning samples";
+  if (deleted != nullptr) *deleted = 0;
+  if (Status s = impl_->RequireWritable(kOp); !s.ok()) return s;
+  sqlite3_stmt* first_line = nullptr;
+  sqlite3_stmt* next_line = nullptr;
+  sqlite3_stmt* remove = nullptr;
+  // Walking the distinct lines with min() seeks on the (line, time_ms) index
+  // instead of scanning the table; each delete batch then uses the same index.
+  if (Status s = impl_->Prepare("SELECT min(line) FROM samples", &first_line); !s.ok()) return s;
+  if (Status s = impl_->Prepare("SELECT min(line) FROM samples WHERE line > ?1", &next_line);
+      !s.ok()) {
+    return s;
+  }
+  if (Status s = impl_->Prepare("DELETE FROM samples WHERE rowid IN (SELECT rowid FROM samples "
+                                "WHERE line = ?1 AND time_ms < ?2 LIMIT ?3)",
+                                &remove);
+      !s.ok()) {
+    return s;
+  }
+
+  std::int64_t total = 0;
+  std::optional<std::string> line;
+  while (true) {
+    {
+      sqlite3_stmt* stmt = line ? next_line : first_line;
+      StatementUse use(stmt);
+      if (line && BindText(stmt, 1, *line) != SQLITE_OK) return impl_->Error(kOp);
+      if (sqlite3_step(stmt) != SQLITE_ROW) return impl_->Error(kOp);
+      if (sqlite3_column_type(stmt, 0) == SQLITE_NULL) break;
+      line = std::string(ColumnText(stmt, 0));
+    }
+    while (true) {
+      Transaction txn(*impl_);
+      if (Status s = txn.Begin(kOp); !s.ok()) return s;
+      std::int64_t changes = 0;
+      {
+        StatementUse use(remove);
+        if ((BindText(remove, 1, *line) | sqlite3_bind_int64(remove, 2, cutoff_ms) |
+             sqlite3_bind_int(remove, 3, kPruneBatchRows)) != SQLITE_OK ||
+            sqlite3_step(remove) != SQLITE_DONE) {
+          return impl_->Error(fmt::format("{}: line '{}'", kOp, *line));
+        }
+        changes = sqlite3_changes64(impl_->db);
+      }
+      if (Status s = txn.Commit(kOp); !s.ok()) return s;
+      total += changes;
+      if (deleted != nullptr) *deleted = total;
+      if (changes < kPruneBatchRows) break;
+    }
+  }
+  // Hand the freed pages back to the file system (auto_vacuum = INCREMENTAL).
+  return impl_->Exec("PRAGMA incremental_vacuum", fmt::format("{}: incremental vacuum", kOp));
+}
+
+}  // namespace heft
