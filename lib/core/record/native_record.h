@@ -48,6 +48,10 @@ RecordParse ParseNativeRecord(std::string_view text, RecordView* out);
 // True if `text` is the native header line.
 bool IsNativeHeader(std::string_view text);
 
+// True if `text` is a valid line id: 1..64 characters of [A-Za-z0-9_.-].
+// Shared with the config loader so both accept the same ids.
+bool IsNativeLineId(std::string_view text);
+
 // Parses "500.2", "0.5002kg", "17.6oz", "1.1lb" into grams; nullopt if malformed.
 std::optional<double> ParseWeightGrams(std::string_view text);
 

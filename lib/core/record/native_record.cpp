@@ -1,0 +1,345 @@
+// native_record.cpp — parser for the native CSV feed format (see native_record.h).
+//
+// Hot path: called once per pack at line rate, so it allocates nothing, uses no
+// locale and no regex. Integers and doubles go through std::from_chars.
+#include "core/record/native_record.h"
+
+#include <array>
+#include <charconv>
+#include <cmath>
+#include <cstddef>
+#include <system_error>
+
+namespace heft {
+namespace {
+
+constexpr std::int64_t kMsPerDay = 86'400'000;
+constexpr std::size_t kMaxLineIdLength = 64;
+constexpr int kMaxHead = 999;  // heads are 0..999
+constexpr std::size_t kMaxFields = 5;
+
+// Exact definitions: 1 lb = 0.45359237 kg (international avoirdupois pound,
+// 1959 agreement); 1 oz = 1/16 lb = 28.349523125 g.
+constexpr double kGramsPerKilogram = 1000.0;
+constexpr double kGramsPerOunce = 28.349523125;
+constexpr double kGramsPerPound = 453.59237;
+
+// Largest time ParseTimeMs accepts as epoch ms: 9999-12-31T23:59:59.999Z, so
+// that every accepted time formats back with a four-digit year.
+constexpr std::int64_t kMaxEpochMs = 253'402'300'799'999;
+
+bool IsSpace(char c) { return c == ' ' || c == '\t'; }
+bool IsDigit(char c) { return c >= '0' && c <= '9'; }
+
+std::string_view Trim(std::string_view s) {
+  while (!s.empty() && IsSpace(s.front())) s.remove_prefix(1);
+  while (!s.empty() && IsSpace(s.back())) s.remove_suffix(1);
+  return s;
+}
+
+// Days since 1970-01-01 for a proleptic Gregorian date (Howard Hinnant,
+// "chrono-Compatible Low-Level Date Algorithms", days_from_civil).
+std::int64_t DaysFromCivil(std::int64_t y, unsigned m, unsigned d) {
+  y -= m <= 2 ? 1 : 0;
+  const std::int64_t era = (y >= 0 ? y : y - 399) / 400;
+  const auto yoe = static_cast<unsigned>(y - era * 400);                 // [0, 399]
+  const unsigned doy = (153 * (m > 2 ? m - 3 : m + 9) + 2) / 5 + d - 1;  // [0, 365]
+  const unsigned doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;            // [0, 146096]
+  return era * 146097 + static_cast<std::int64_t>(doe) - 719468;
+}
+
+// Inverse of DaysFromCivil (same source, civil_from_days).
+void CivilFromDays(std::int64_t z, std::int64_t* y, unsigned* m, unsigned* d) {
+  z += 719468;
+  const std::int64_t era = (z >= 0 ? z : z - 146096) / 146097;
+  const auto doe = static_cast<unsigned>(z - era * 146097);                    // [0, 146096]
+  const unsigned yoe = (doe - doe / 1460 + doe / 36524 - doe / 146096) / 365;  // [0, 399]
+  const unsigned doy = doe - (365 * yoe + yoe / 4 - yoe / 100);                // [0, 365]
+  const unsigned mp = (5 * doy + 2) / 153;                                     // [0, 11]
+  *d = doy - (153 * mp + 2) / 5 + 1;
+  *m = mp < 10 ? mp + 3 : mp - 9;
+  *y = static_cast<std::int64_t>(yoe) + era * 400 + (*m <= 2 ? 1 : 0);
+}
+
+bool IsLeapYear(int y) { return (y % 4 == 0 && y % 100 != 0) || y % 400 == 0; }
+
+int DaysInMonth(int y, int m) {
+  static constexpr std::array<int, 12> kDays = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+  return m == 2 && IsLeapYear(y) ? 29 : kDays[static_cast<std::size_t>(m - 1)];
+}
+
+// Reads exactly `n` digits at s[pos]; false if any is not a digit.
+bool Digits(std::string_view s, std::size_t pos, std::size_t n, int* value) {
+  if (pos + n > s.size()) return false;
+  int v = 0;
+  for (std::size_t i = pos; i < pos + n; ++i) {
+    if (!IsDigit(s[i])) return false;
+    v = v * 10 + (s[i] - '0');
+  }
+  *value = v;
+  return true;
+}
+
+// "YYYY-MM-DDTHH:MM:SS[.f{1,9}](Z|+00:00)".
+std::optional<std::int64_t> ParseIsoTime(std::string_view s) {
+  int year, month, day, hour, minute, second;
+  if (s.size() < 20) return std::nullopt;
+  if (!Digits(s, 0, 4, &year) || s[4] != '-' || !Digits(s, 5, 2, &month) || s[7] != '-' ||
+      !Digits(s, 8, 2, &day) || s[10] != 'T' || !Digits(s, 11, 2, &hour) || s[13] != ':' ||
+      !Digits(s, 14, 2, &minute) || s[16] != ':' || !Digits(s, 17, 2, &second)) {
+    return std::nullopt;
+  }
+  // Leap seconds (:60) are refused: epoch time has no place for them.
+  if (month < 1 || month > 12 || day < 1 || day > DaysInMonth(year, month) || hour > 23 ||
+      minute > 59 || second > 59) {
+    return std::nullopt;
+  }
+  std::size_t pos = 19;
+  int millis = 0;
+  if (s[pos] == '.') {
+    ++pos;
+    std::size_t digits = 0;
+    while (pos < s.size() && IsDigit(s[pos])) {
+      if (digits < 3) millis = millis * 10 + (s[pos] - '0');
+      ++digits;
+      ++pos;
+    }
+    if (digits == 0 || digits > 9) return std::nullopt;
+    for (std::size_t i = digits; i < 3; ++i) millis *= 10;  // ".5" is 500 ms
+  }
+  const std::string_view zone = s.substr(pos);
+  if (zone != "Z" && zone != "+00:00") return std::nullopt;
+  const std::int64_t days =
+      DaysFromCivil(year, static_cast<unsigned>(month), static_cast<unsigned>(day));
+  return days * kMsPerDay + ((hour * 60 + minute) * 60 + second) * std::int64_t{1000} + millis;
+}
+
+std::optional<std::int64_t> ParseEpochMs(std::string_view s) {
+  if (s.empty() || s.size() > 15) return std::nullopt;  // kMaxEpochMs has 15 digits
+  for (char c : s) {
+    if (!IsDigit(c)) return std::nullopt;
+  }
+  std::int64_t value = 0;
+  const auto [end, ec] = std::from_chars(s.data(), s.data() + s.size(), value);
+  if (ec != std::errc() || end != s.data() + s.size() || value > kMaxEpochMs) return std::nullopt;
+  return value;
+}
+
+enum class WeightError { kNone, kNumber, kUnit };
+
+WeightError ParseWeight(std::string_view s, double* grams) {
+  s = Trim(s);
+  if (s.empty()) return WeightError::kNumber;
+  // from_chars takes a '-' but not a '+'; it also takes "inf"/"nan", which the
+  // leading-character check and isfinite below refuse.
+  const char first = s.front();
+  if (!IsDigit(first) && first != '-' && first != '.') return WeightError::kNumber;
+  double value = 0.0;
+  const auto [end, ec] = std::from_chars(s.data(), s.data() + s.size(), value);
+  if (ec != std::errc() || !std::isfinite(value)) return WeightError::kNumber;
+  std::string_view unit = Trim(s.substr(static_cast<std::size_t>(end - s.data())));
+  if (unit.empty() || unit == "g") {
+    *grams = value;
+  } else if (unit == "kg") {
+    *grams = value * kGramsPerKilogram;
+  } else if (unit == "oz") {
+    *grams = value * kGramsPerOunce;
+  } else if (unit == "lb") {
+    *grams = value * kGramsPerPound;
+  } else {
+    // "500 mg" names a unit we do not know; "500.2.3" is a malformed number.
+    for (char c : unit) {
+      if (!((c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z'))) return WeightError::kNumber;
+    }
+    return WeightError::kUnit;
+  }
+  if (!std::isfinite(*grams)) return WeightError::kNumber;  // e.g. 1e308 lb
+  return WeightError::kNone;
+}
+
+bool IsLineIdChar(char c) {
+  return (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || IsDigit(c) || c == '_' || c == '.' ||
+         c == '-';
+}
+
+bool ParseHead(std::string_view s, int* head) {
+  s = Trim(s);
+  if (s.empty()) {
+    *head = kNoHead;
+    return true;
+  }
+  int value = 0;
+  for (char c : s) {
+    if (!IsDigit(c)) return false;
+    value = value * 10 + (c - '0');
+    if (value > kMaxHead) return false;  // also keeps `value` from overflowing
+  }
+  *head = value;
+  return true;
+}
+
+bool ParseStatus(std::string_view s, PackStatus* status) {
+  if (s.empty() || s == "ok") {
+    *status = PackStatus::kOk;
+  } else if (s == "reject") {
+    *status = PackStatus::kRejected;
+  } else if (s == "error") {
+    *status = PackStatus::kError;
+  } else {
+    return false;
+  }
+  return true;
+}
+
+RecordParse Fail(RecordError error, int field) { return RecordParse{error, field}; }
+
+void PutDigits(char*& p, std::int64_t value, int width) {
+  char* end = p + width;
+  for (char* q = end; q != p;) {
+    *--q = static_cast<char>('0' + value % 10);
+    value /= 10;
+  }
+  p = end;
+}
+
+}  // namespace
+
+std::string_view RecordErrorName(RecordError error) {
+  switch (error) {
+    case RecordError::kNone:
+      return "none";
+    case RecordError::kEmpty:
+      return "empty";
+    case RecordError::kBinary:
+      return "binary";
+    case RecordError::kColumnCount:
+      return "column_count";
+    case RecordError::kBadTime:
+      return "bad_time";
+    case RecordError::kBadLine:
+      return "bad_line";
+    case RecordError::kBadHead:
+      return "bad_head";
+    case RecordError::kBadWeight:
+      return "bad_weight";
+    case RecordError::kBadUnit:
+      return "bad_unit";
+    case RecordError::kBadStatus:
+      return "bad_status";
+    case RecordError::kTooLong:
+      return "too_long";
+  }
+  return "unknown";
+}
+
+RecordParse ParseNativeRecord(std::string_view text, RecordView* out) {
+  // One pass: refuse non-text bytes, note whether anything but blanks is there,
+  // and find the field boundaries.
+  std::array<std::size_t, kMaxFields + 1> starts{};
+  std::size_t fields = 1;
+  bool blank = true;
+  for (std::size_t i = 0; i < text.size(); ++i) {
+    const auto c = static_cast<unsigned char>(text[i]);
+    if ((c < 0x20 && c != '\t') || c >= 0x7F) return Fail(RecordError::kBinary, -1);
+    if (c == ',') {
+      if (fields < kMaxFields + 1) starts[fields] = i + 1;
+      ++fields;
+    }
+    if (c != ' ' && c != '\t') blank = false;
+  }
+  if (blank) return Fail(RecordError::kEmpty, -1);
+  if (fields != 4 && fields != 5) return Fail(RecordError::kColumnCount, -1);
+  starts[fields] = text.size() + 1;  // as if a comma followed the last field
+  auto field = [&](std::size_t k) { return text.substr(starts[k], starts[k + 1] - 1 - starts[k]); };
+
+  RecordView record;
+  const std::string_view time = Trim(field(0));
+  if (!time.empty()) {
+    const std::optional<std::int64_t> time_ms = ParseTimeMs(time);
+    if (!time_ms) return Fail(RecordError::kBadTime, 0);
+    record.has_time = true;
+    record.time_ms = *time_ms;
+  }
+  record.line = field(1);
+  if (!IsNativeLineId(record.line)) return Fail(RecordError::kBadLine, 1);
+  if (!ParseHead(field(2), &record.head)) return Fail(RecordError::kBadHead, 2);
+  switch (ParseWeight(field(3), &record.grams)) {
+    case WeightError::kNone:
+      break;
+    case WeightError::kNumber:
+      return Fail(RecordError::kBadWeight, 3);
+    case WeightError::kUnit:
+      return Fail(RecordError::kBadUnit, 3);
+  }
+  if (fields == 5 && !ParseStatus(field(4), &record.status)) {
+    return Fail(RecordError::kBadStatus, 4);
+  }
+  *out = record;
+  return RecordParse{};
+}
+
+bool IsNativeLineId(std::string_view text) {
+  if (text.empty() || text.size() > kMaxLineIdLength) return false;
+  for (char c : text) {
+    if (!IsLineIdChar(c)) return false;
+  }
+  return true;
+}
+
+bool IsNativeHeader(std::string_view text) {
+  while (!text.empty() && (IsSpace(text.back()) || text.back() == '\r')) text.remove_suffix(1);
+  return text == "time,line,head,weight" || text == "time,line,head,weight,status";
+}
+
+std::optional<double> ParseWeightGrams(std::string_view text) {
+  double grams = 0.0;
+  if (ParseWeight(text, &grams) != WeightError::kNone) return std::nullopt;
+  return grams;
+}
+
+std::optional<std::int64_t> ParseTimeMs(std::string_view text) {
+  if (text.size() > 4 && text[4] == '-') return ParseIsoTime(text);
+  return ParseEpochMs(text);
+}
+
+void FormatTimeMs(std::int64_t time_ms, char (&buffer)[32]) {
+  // Floor division, so times before 1970 format correctly too.
+  std::int64_t days = time_ms / kMsPerDay;
+  std::int64_t ms_of_day = time_ms % kMsPerDay;
+  if (ms_of_day < 0) {
+    ms_of_day += kMsPerDay;
+    --days;
+  }
+  std::int64_t year;
+  unsigned month, day;
+  CivilFromDays(days, &year, &month, &day);
+
+  char* p = buffer;
+  // Years outside 0000..9999 use the ISO 8601 expanded form (+YYYYY / -YYYY);
+  // the widest, about +292278994, still fits the buffer.
+  if (year < 0) {
+    *p++ = '-';
+    year = -year;
+  } else if (year > 9999) {
+    *p++ = '+';
+  }
+  int year_digits = 4;
+  for (std::int64_t y = year; y >= 10'000; y /= 10) ++year_digits;
+  PutDigits(p, year, year_digits);
+  *p++ = '-';
+  PutDigits(p, month, 2);
+  *p++ = '-';
+  PutDigits(p, day, 2);
+  *p++ = 'T';
+  PutDigits(p, ms_of_day / 3'600'000, 2);
+  *p++ = ':';
+  PutDigits(p, ms_of_day / 60'000 % 60, 2);
+  *p++ = ':';
+  PutDigits(p, ms_of_day / 1000 % 60, 2);
+  *p++ = '.';
+  PutDigits(p, ms_of_day % 1000, 3);
+  *p++ = 'Z';
+  *p = '\0';
+}
+
+}  // namespace heft

@@ -1,0 +1,416 @@
+// config_test.cpp — the YAML configuration loader (io/config_loader.h).
+#include "io/config_loader.h"
+
+#include <catch2/catch.hpp>
+
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <string>
+#include <system_error>
+#include <vector>
+
+#include <unistd.h>
+
+namespace heft {
+namespace {
+
+using Lines = std::vector<std::string>;
+
+Config MustLoad(const std::string& text) {
+  Config config;
+  std::vector<std::string> errors{"stale"};
+  const Status status = LoadConfigText(text, "t.yaml", &config, &errors);
+  INFO(status.message());
+  REQUIRE(status.ok());
+  REQUIRE(errors.empty());
+  return config;
+}
+
+// Loads `text`, expects failure, and returns the error lines.
+Lines Errors(const std::string& text) {
+  Config config;
+  config.listen.port = 4242;  // must survive a failed load
+  std::vector<std::string> errors;
+  const Status status = LoadConfigText(text, "t.yaml", &config, &errors);
+  CHECK_FALSE(status.ok());
+  REQUIRE_FALSE(errors.empty());
+  // The status leads with the first error.
+  CHECK(status.message().rfind(errors.front(), 0) == 0);
+  CHECK(config.listen.port == 4242);
+  return errors;
+}
+
+TEST_CASE("config: a complete file is read into every field", "[config]") {
+  const Config c = MustLoad(R"(
+listen: {address: 0.0.0.0, port: 7400, max_connections: 8}
+storage:
+  database: /var/lib/heft/plant.db
+  raw_samples: false
+  raw_retention_days: 0
+  flush_interval_ms: 100
+  batch_max_rows: 500
+log: {file: /var/log/heft.log, level: debug}
+defaults:
+  false_alarms_per_day: 0.5
+  pack_rate_per_min: 90
+  min_shift_sigma: 1.5
+  baseline_packs: 250
+  silence_s: 45
+  gross_low_ratio: 0.4
+  gross_high_ratio: 2
+max_lines: 12
+lines:
+  - id: oats-1
+    product: Rolled oats 500 g
+    nominal_g: 500
+    target_g: 503.5
+    heads: 12
+    false_alarms_per_day: 2
+    pack_rate_per_min: 150
+    min_shift_sigma: 0.75
+    baseline_packs: 400
+    silence_s: 30
+    gross_low_ratio: 0.6
+    gross_high_ratio: 1.4
+)");
+  CHECK(c.path == "t.yaml");
+  CHECK(c.listen.address == "0.0.0.0");
+  CHECK(c.listen.port == 7400);
+  CHECK(c.listen.max_connections == 8);
+  CHECK(c.storage.database == "/var/lib/heft/plant.db");
+  CHECK(c.storage.raw_samples == false);
+  CHECK(c.storage.raw_retention_days == 0);
+  CHECK(c.storage.flush_interval_ms == 100);
+  CHECK(c.storage.batch_max_rows == 500);
+  CHECK(c.log.file == "/var/log/heft.log");
+  CHECK(c.log.level == "debug");
+
+  const LineSettings& d = c.plant.defaults;
+  CHECK(d.false_alarms_per_day == 0.5);
+  CHECK(d.pack_rate_per_min == 90.0);
+  CHECK(d.min_shift_sigma == 1.5);
+  CHECK(d.baseline_packs == 250);
+  CHECK(d.silence_ms == 45'000);
+  CHECK(d.gross_low_ratio == 0.4);
+  CHECK(d.gross_high_ratio == 2.0);
+  CHECK(c.plant.max_lines == 12);
+
+  REQUIRE(c.plant.lines.size() == 1);
+  const LineSettings& oats = c.plant.lines.at("oats-1");
+  CHECK(oats.product == "Rolled oats 500 g");
+  CHECK(oats.nominal_g == 500.0);
+  CHECK(oats.target_g == 503.5);
+  CHECK(oats.heads == 12);
+  CHECK(oats.false_alarms_per_day == 2.0);
+  CHECK(oats.pack_rate_per_min == 150.0);
+  CHECK(oats.min_shift_sigma == 0.75);
+  CHECK(oats.baseline_packs == 400);
+  CHECK(oats.silence_ms == 30'000);
+  CHECK(oats.gross_low_ratio == 0.6);
+  CHECK(oats.gross_high_ratio == 1.4);
+}
+
+TEST_CASE("config: an empty file gives the built-in defaults", "[config]") {
+  for (const char* text : {"", "# nothing here\n", "---\n"}) {
+    const Config c = MustLoad(text);
+    const Config built_in;
+    CHECK(c.listen.address == built_in.listen.address);
+    CHECK(c.listen.port == 7311);
+    CHECK(c.storage.database == "heft.db");
+    CHECK(c.storage.batch_max_rows == 20'000);
+    CHECK(c.log.level == "info");
+    CHECK(c.plant.defaults.baseline_packs == 300);
+    CHECK(c.plant.defaults.silence_ms == 60'000);
+    CHECK(c.plant.max_lines == 1000);
+    CHECK(c.plant.lines.empty());
+  }
+}
+
+TEST_CASE("config: lines start from defaults, wherever defaults stand", "[config]") {
+  // `defaults` after `lines` on purpose.
+  const Config c = MustLoad(R"(
+lines:
+  - id: oats-1
+    nominal_g: 500
+    baseline_packs: 100
+  - id: honey-2
+    heads: 4
+defaults:
+  baseline_packs: 200
+  silence_s: 20
+  min_shift_sigma: 0.5
+)");
+  CHECK(c.plant.defaults.baseline_packs == 200);
+  CHECK(c.plant.defaults.silence_ms == 20'000);
+  const LineSettings& oats = c.plant.lines.at("oats-1");
+  CHECK(oats.baseline_packs == 100);  // its own
+  CHECK(oats.silence_ms == 20'000);   // from defaults
+  CHECK(oats.min_shift_sigma == 0.5);
+  CHECK(oats.nominal_g == 500.0);
+  CHECK_FALSE(oats.target_g.has_value());
+  const LineSettings& honey = c.plant.lines.at("honey-2");
+  CHECK(honey.baseline_packs == 200);
+  CHECK(honey.heads == 4);
+  CHECK_FALSE(honey.nominal_g.has_value());
+  // Keys set nowhere keep the built-in values.
+  CHECK(honey.pack_rate_per_min == 120.0);
+  CHECK(honey.gross_high_ratio == 1.5);
+}
+
+TEST_CASE("config: numbers are read as YAML 1.2 decimals, not stream conversions", "[config]") {
+  const Config c = MustLoad("listen: {port: 010}\ndefaults: {pack_rate_per_min: 1.2e2}\n");
+  CHECK(c.listen.port == 10);  // not octal 8
+  CHECK(c.plant.defaults.pack_rate_per_min == 120.0);
+  CHECK(MustLoad("listen: {port: +7312}\n").listen.port == 7312);
+  CHECK(MustLoad("storage: {raw_samples: False}\n").storage.raw_samples == false);
+  CHECK(MustLoad("log: {file: }\n").log.file.empty());
+  CHECK(MustLoad("lines:\n  - id: 12\n").plant.lines.count("12") == 1);
+}
+
+// Each error kind, with its exact text and position.
+
+TEST_CASE("config error: unknown keys", "[config]") {
+  CHECK(Errors("lisen:\n  port: 1\n") ==
+        Lines{"t.yaml:1:1: lisen: unknown key (expected one of: listen, storage, log, defaults, "
+              "max_lines, lines)"});
+  CHECK(Errors("listen:\n  prot: 7311\n") ==
+        Lines{"t.yaml:2:3: listen.prot: unknown key (expected one of: address, port, "
+              "max_connections)"});
+  CHECK(Errors("log: {file: x, colour: true}\n") ==
+        Lines{"t.yaml:1:16: log.colour: unknown key (expected one of: file, level)"});
+  CHECK(Errors("lines:\n  - id: oats-1\n    head: 12\n") ==
+        Lines{"t.yaml:3:5: lines[0].head: unknown key (expected one of: id, product, nominal_g, "
+              "target_g, heads, false_alarms_per_day, pack_rate_per_min, min_shift_sigma, "
+              "baseline_packs, silence_s, gross_low_ratio, gross_high_ratio)"});
+  CHECK(Errors("defaults:\n  nominal_g: 500\n") ==
+        Lines{"t.yaml:2:3: defaults.nominal_g: is set per line, not in defaults"});
+}
+
+TEST_CASE("config error: wrong types", "[config]") {
+  CHECK(Errors("listen:\n  port: abc\n") ==
+        Lines{"t.yaml:2:9: listen.port: expected a whole number, got \"abc\""});
+  CHECK(Errors("listen:\n  port: \"7311\"\n") ==
+        Lines{"t.yaml:2:9: listen.port: expected a whole number, got the quoted string \"7311\""});
+  CHECK(Errors("listen:\n  port: 7311.5\n") ==
+        Lines{"t.yaml:2:9: listen.port: expected a whole number, got \"7311.5\""});
+  CHECK(Errors("listen:\n  port:\n") ==
+        Lines{"t.yaml:2:3: listen.port: expected a whole number, got nothing"});
+  CHECK(Errors("listen:\n  port: [1, 2]\n") ==
+        Lines{"t.yaml:2:9: listen.port: expected a whole number, got a list"});
+  CHECK(Errors("defaults:\n  pack_rate_per_min: fast\n") ==
+        Lines{"t.yaml:2:22: defaults.pack_rate_per_min: expected a number, got \"fast\""});
+  CHECK(Errors("defaults:\n  min_shift_sigma: .nan\n") ==
+        Lines{"t.yaml:2:20: defaults.min_shift_sigma: expected a number, got \".nan\""});
+  CHECK(Errors("storage:\n  raw_samples: yes\n") ==
+        Lines{"t.yaml:2:16: storage.raw_samples: expected true or false, got \"yes\""});
+  CHECK(Errors("log:\n  file: {a: 1}\n") ==
+        Lines{"t.yaml:2:9: log.file: expected a string, got a mapping"});
+  CHECK(Errors("listen: 7311\n") == Lines{"t.yaml:1:9: listen: expected a mapping, got \"7311\""});
+  CHECK(Errors("lines:\n  id: oats-1\n") ==
+        Lines{"t.yaml:2:3: lines: expected a list, got a mapping"});
+  CHECK(Errors("lines:\n  - oats-1\n") ==
+        Lines{"t.yaml:2:5: lines[0]: expected a mapping, got \"oats-1\""});
+  CHECK(Errors("- listen\n") == Lines{"t.yaml:1:1: (top level): expected a mapping, got a list"});
+}
+
+TEST_CASE("config error: values out of range", "[config]") {
+  CHECK(Errors("listen: {port: 70000}\n") ==
+        Lines{"t.yaml:1:16: listen.port: must be between 1 and 65535, got 70000"});
+  CHECK(Errors("listen: {port: 0}\n") ==
+        Lines{"t.yaml:1:16: listen.port: must be between 1 and 65535, got 0"});
+  CHECK(Errors("defaults:\n  pack_rate_per_min: 0\n") ==
+        Lines{"t.yaml:2:22: defaults.pack_rate_per_min: must be greater than 0, got 0"});
+  CHECK(Errors("defaults:\n  false_alarms_per_day: -1\n") ==
+        Lines{"t.yaml:2:25: defaults.false_alarms_per_day: must be greater than 0, got -1"});
+  CHECK(Errors("defaults:\n  baseline_packs: 29\n") ==
+        Lines{"t.yaml:2:19: defaults.baseline_packs: must be between 30 and 100000, got 29"});
+  CHECK(Errors("defaults:\n  silence_s: 86401\n") ==
+        Lines{"t.yaml:2:14: defaults.silence_s: must be between 1 and 86400, got 86401"});
+  CHECK(Errors("defaults:\n  gross_low_ratio: 1\n") ==
+        Lines{"t.yaml:2:20: defaults.gross_low_ratio: must be at least 0 and less than 1, got 1"});
+  CHECK(
+      Errors("defaults:\n  gross_high_ratio: 1\n") ==
+      Lines{
+          "t.yaml:2:21: defaults.gross_high_ratio: must be greater than 1 and at most 10, got 1"});
+  CHECK(
+      Errors("defaults:\n  min_shift_sigma: 0\n") ==
+      Lines{"t.yaml:2:20: defaults.min_shift_sigma: must be greater than 0 and at most 10, got 0"});
+  CHECK(Errors("lines:\n  - id: oats-1\n    nominal_g: 0.05\n") ==
+        Lines{"t.yaml:3:16: lines[0].nominal_g: must be between 0.1 and 100000, got 0.05"});
+  CHECK(Errors("lines:\n  - id: oats-1\n    target_g: 100001\n") ==
+        Lines{"t.yaml:3:15: lines[0].target_g: must be between 0.1 and 100000, got 100001"});
+  CHECK(Errors("lines:\n  - id: oats-1\n    heads: 257\n") ==
+        Lines{"t.yaml:3:12: lines[0].heads: must be between 0 and 256, got 257"});
+  CHECK(Errors("log: {level: verbose}\n") ==
+        Lines{"t.yaml:1:14: log.level: must be one of trace, debug, info, warn, error; got "
+              "\"verbose\""});
+  CHECK(Errors("storage: {database: \"\"}\n") ==
+        Lines{"t.yaml:1:21: storage.database: must not be empty"});
+  CHECK(Errors("max_lines: 1\nlines:\n  - id: a\n  - id: b\n") ==
+        Lines{"t.yaml:3:3: lines: lists 2 lines, more than max_lines (1)"});
+}
+
+TEST_CASE("config error: line ids", "[config]") {
+  CHECK(Errors("lines:\n  - id: oats-1\n  - id: oats-1\n") ==
+        Lines{"t.yaml:3:9: lines[1].id: duplicate line id \"oats-1\" (first at line 2)"});
+  CHECK(Errors("lines:\n  - id: \"\"\n") == Lines{"t.yaml:2:9: lines[0].id: must not be empty"});
+  CHECK(Errors("lines:\n  - id:\n    heads: 1\n") ==
+        Lines{"t.yaml:2:5: lines[0].id: must not be empty"});
+  CHECK(Errors("lines:\n  - product: oats\n") ==
+        Lines{"t.yaml:2:5: lines[0]: missing required key \"id\""});
+  CHECK(Errors("lines:\n  - id: oats 1\n") ==
+        Lines{"t.yaml:2:9: lines[0].id: \"oats 1\" is not a line id (1 to 64 characters of A-Z, "
+              "a-z, 0-9, '_', '.', '-')"});
+  const std::string long_id(65, 'a');
+  CHECK(Errors("lines:\n  - id: " + long_id + "\n") ==
+        Lines{"t.yaml:2:9: lines[0].id: \"" + long_id +
+              "\" is not a line id (1 to 64 characters of A-Z, a-z, 0-9, '_', '.', '-')"});
+}
+
+TEST_CASE("config error: repeated keys", "[config]") {
+  CHECK(Errors("listen:\n  port: 1\n  port: 2\n") ==
+        Lines{"t.yaml:3:3: listen.port: duplicate key (first at line 2)"});
+  CHECK(Errors("log: {}\nlog: {}\n") == Lines{"t.yaml:2:1: log: duplicate key (first at line 1)"});
+}
+
+TEST_CASE("config error: all problems are reported at once, in file order", "[config]") {
+  Config config;
+  std::vector<std::string> errors;
+  const Status status = LoadConfigText(R"(lines:
+  - id: oats-1
+    heads: many
+  - id: oats-1
+defaults:
+  silence_s: 0
+listen:
+  port: 99999
+  adress: 0.0.0.0
+)",
+                                       "plant.yaml", &config, &errors);
+  const Lines expected = {
+      "plant.yaml:3:12: lines[0].heads: expected a whole number, got \"many\"",
+      "plant.yaml:4:9: lines[1].id: duplicate line id \"oats-1\" (first at line 2)",
+      "plant.yaml:6:14: defaults.silence_s: must be between 1 and 86400, got 0",
+      "plant.yaml:8:9: listen.port: must be between 1 and 65535, got 99999",
+      "plant.yaml:9:3: listen.adress: unknown key (expected one of: address, port, "
+      "max_connections)",
+  };
+  CHECK(errors == expected);
+  CHECK(status.message() == expected.front() + " (and 4 more errors)");
+}
+
+TEST_CASE("config error: YAML syntax errors say where", "[config]") {
+  // Positions and wording are yaml-cpp 0.7's (Debian 12).
+  CHECK(Errors("listen: {port: 7311\nstorage:\n  database: x\n") ==
+        Lines{"t.yaml:2:8: YAML syntax error: end of map flow not found"});
+  CHECK(Errors("listen:\n  port: 1\n   address: x\n") ==
+        Lines{"t.yaml:3:11: YAML syntax error: illegal map value"});
+  CHECK(Errors("a: *nowhere\n") ==
+        Lines{"t.yaml:1:4: YAML syntax error: the referenced anchor is not defined"});
+}
+
+TEST_CASE("config: files", "[config]") {
+  namespace fs = std::filesystem;
+  const fs::path dir =
+      fs::temp_directory_path() / ("heft-config-test-" + std::to_string(::getpid()));
+  fs::create_directories(dir);
+  struct Cleanup {
+    fs::path dir;
+    ~Cleanup() {
+      std::error_code ignored;
+      fs::remove_all(dir, ignored);
+    }
+  } cleanup{dir};
+
+  SECTION("missing file") {
+    const std::string path = (dir / "no-such.yaml").string();
+    Config config;
+    std::vector<std::string> errors;
+    const Status status = LoadConfigFile(path, &config, &errors);
+    CHECK_FALSE(status.ok());
+    CHECK(status.message() == path + ": cannot read configuration file: No such file or directory");
+    CHECK(errors == Lines{status.message()});
+  }
+  SECTION("a directory is not a file") {
+    Config config;
+    const Status status = LoadConfigFile(dir.string(), &config, nullptr);
+    CHECK(status.message() == dir.string() + ": cannot read configuration file: Is a directory");
+  }
+  SECTION("errors name the file") {
+    const std::string path = (dir / "bad.yaml").string();
+    std::ofstream(path) << "listen:\n  port: 0\n";
+    Config config;
+    std::vector<std::string> errors;
+    CHECK_FALSE(LoadConfigFile(path, &config, &errors).ok());
+    CHECK(errors == Lines{path + ":2:9: listen.port: must be between 1 and 65535, got 0"});
+  }
+  SECTION("a good file") {
+    const std::string path = (dir / "good.yaml").string();
+    std::ofstream(path) << "listen:\n  port: 7399\n";
+    Config config;
+    CHECK(LoadConfigFile(path, &config, nullptr).ok());
+    CHECK(config.path == path);
+    CHECK(config.listen.port == 7399);
+  }
+}
+
+TEST_CASE("config: the shipped demo and example files load", "[config]") {
+  const std::string source = HEFT_SOURCE_DIR;
+  Config demo;
+  std::vector<std::string> errors;
+  const Status status = LoadConfigFile(source + "/config/demo.yaml", &demo, &errors);
+  INFO(status.message());
+  REQUIRE(status.ok());
+  CHECK(demo.listen.port == 7311);
+  CHECK(demo.storage.database == "heft-demo.db");
+  CHECK(demo.plant.defaults.baseline_packs == 200);
+  CHECK(demo.plant.defaults.silence_ms == 20'000);
+  REQUIRE(demo.plant.lines.size() == 3);
+  const LineSettings& oats1 = demo.plant.lines.at("oats-1");
+  CHECK(oats1.nominal_g == 500.0);
+  CHECK(oats1.target_g == 503.0);
+  CHECK(oats1.heads == 12);
+  CHECK(oats1.baseline_packs == 200);
+  CHECK(oats1.silence_ms == 20'000);
+  const LineSettings& oats2 = demo.plant.lines.at("oats-2");
+  CHECK(oats2.nominal_g == 1000.0);
+  CHECK(oats2.target_g == 1004.0);
+  CHECK(oats2.heads == 12);
+  const LineSettings& honey = demo.plant.lines.at("honey-2");
+  CHECK(honey.nominal_g == 340.0);
+  CHECK(honey.target_g == 343.0);
+  CHECK(honey.heads == 4);
+
+  Config example;
+  const Status example_status = LoadConfigFile(source + "/config/example.yaml", &example, &errors);
+  INFO(example_status.message());
+  REQUIRE(example_status.ok());
+  // The example spells out the built-in defaults, so it must equal them.
+  const Config built_in;
+  CHECK(example.listen.address == built_in.listen.address);
+  CHECK(example.listen.port == built_in.listen.port);
+  CHECK(example.listen.max_connections == built_in.listen.max_connections);
+  CHECK(example.storage.database == built_in.storage.database);
+  CHECK(example.storage.raw_samples == built_in.storage.raw_samples);
+  CHECK(example.storage.raw_retention_days == built_in.storage.raw_retention_days);
+  CHECK(example.storage.flush_interval_ms == built_in.storage.flush_interval_ms);
+  CHECK(example.storage.batch_max_rows == built_in.storage.batch_max_rows);
+  CHECK(example.log.file == built_in.log.file);
+  CHECK(example.log.level == built_in.log.level);
+  const LineSettings& d = example.plant.defaults;
+  const LineSettings& b = built_in.plant.defaults;
+  CHECK(d.false_alarms_per_day == b.false_alarms_per_day);
+  CHECK(d.pack_rate_per_min == b.pack_rate_per_min);
+  CHECK(d.min_shift_sigma == b.min_shift_sigma);
+  CHECK(d.baseline_packs == b.baseline_packs);
+  CHECK(d.silence_ms == b.silence_ms);
+  CHECK(d.gross_low_ratio == b.gross_low_ratio);
+  CHECK(d.gross_high_ratio == b.gross_high_ratio);
+  CHECK(example.plant.max_lines == built_in.plant.max_lines);
+  REQUIRE(example.plant.lines.size() == 1);
+  CHECK(example.plant.lines.at("oats-1").pack_rate_per_min == 150.0);
+}
+
+}  // namespace
+}  // namespace heft
