@@ -1,0 +1,79 @@
+// daemon.h — heftd's wiring: store, batch writer, line engine, ingest server,
+// housekeeping tick and signals on one io_context.
+//
+// Used by main.cpp only. Start() does every step that can fail on a bad setup
+// (open the database, register the configured lines, bind the port) before
+// logging `listening on ADDRESS:PORT`, so a supervisor sees startup errors at
+// once. Run() drives the loop on the calling thread until shutdown is done.
+//
+// Shutdown (SIGINT or SIGTERM), in stages:
+//   1. close the acceptor and stop every session (each finishes its ingest,
+//      so the last records and their findings count);
+//   2. write the last batch synchronously;
+//   3. close the database;
+//   4. log a summary; run() returns because no work is left.
+// A second signal during shutdown exits at once with status 1.
+//
+// Not thread-safe: everything runs on the thread that calls Run(). `clock` is
+// borrowed and must outlive the Daemon.
+#pragma once
+
+#include <chrono>
+#include <memory>
+#include <string_view>
+
+#include <boost/asio/io_context.hpp>
+#include <boost/asio/signal_set.hpp>
+#include <boost/asio/steady_timer.hpp>
+
+#include "core/model/status.h"
+#include "io/config_loader.h"
+#include "io/store.h"
+
+namespace heft {
+
+class BatchWriter;
+class Clock;
+class IngestServer;
+class LineEngine;
+
+class Daemon {
+ public:
+  // Housekeeping period and how late a tick may run before we warn.
+  static constexpr std::chrono::milliseconds kTickPeriod{1000};
+  static constexpr std::chrono::milliseconds kTickLateWarning{1000};
+
+  Daemon(Config config, const Clock& clock);
+  ~Daemon();
+  Daemon(const Daemon&) = delete;
+  Daemon& operator=(const Daemon&) = delete;
+
+  // Opens the database, registers lines, binds the listener, arms the timers
+  // and signals. On error returns a one-line reason and leaves nothing running.
+  Status Start();
+  // Runs until shutdown has completed.
+  void Run();
+
+ private:
+  void OnSignal(const boost::system::error_code& ec, int signal_number);
+  void Shutdown(std::string_view why);
+  void ArmTick();
+  // The housekeeping tick. Jobs: (1) warn when the loop stalled (tick late by
+  // more than kTickLateWarning); (2) LineEngine::AdvanceClock for silence.
+  // Batch writes have their own timer (storage.flush_interval_ms).
+  void OnTick(const boost::system::error_code& ec);
+
+  Config config_;
+  const Clock& clock_;
+  boost::asio::io_context io_;
+  std::unique_ptr<Store> store_;
+  std::unique_ptr<BatchWriter> writer_;
+  std::unique_ptr<LineEngine> engine_;
+  std::unique_ptr<IngestServer> server_;
+  boost::asio::signal_set signals_;
+  boost::asio::steady_timer tick_timer_;
+  std::chrono::steady_clock::time_point tick_due_;
+  bool stopping_ = false;
+};
+
+}  // namespace heft

@@ -1,0 +1,73 @@
+#include "line_engine.h"
+
+#include <utility>
+
+#include <spdlog/spdlog.h>
+
+#include "batch_writer.h"
+#include "clock.h"
+#include "core/monitor/operator_message.h"
+#include "ingest_source.h"
+
+namespace heft {
+namespace {
+// Source name given to findings that the housekeeping tick (not a record) raised.
+constexpr const char* kTimerSource = "heftd:clock";
+}  // namespace
+
+LineEngine::LineEngine(PlantSettings settings, BatchWriter& writer, const Clock& clock,
+                       bool keep_samples)
+    : plant_(std::move(settings)), writer_(writer), clock_(clock), keep_samples_(keep_samples) {}
+
+LineEngine::~LineEngine() = default;
+
+std::unique_ptr<IngestSource> LineEngine::OpenSource(std::string name) {
+  return std::make_unique<IngestSource>(*this, std::move(name), clock_);
+}
+
+void LineEngine::OnPack(const std::string& source, std::string_view line, const Pack& pack) {
+  if (!keep_samples_) return;
+  SampleRow row;
+  row.line.assign(line);
+  row.source = source;
+  row.record_index = pack.index;
+  row.time_ms = pack.time_ms;
+  row.grams = pack.grams;
+  row.head = pack.head;
+  row.status = pack.status;
+  writer_.AddSample(std::move(row));
+}
+
+void LineEngine::OnFindings(const std::string& source, const std::vector<Finding>& findings) {
+  for (const Finding& finding : findings) {
+    std::string message = OperatorMessage(finding, plant_.SettingsFor(finding.line));
+    if (finding.transition == Transition::kRaised) {
+      ++totals_.raised;
+      spdlog::warn("ALERT {}", message);
+    } else {
+      ++totals_.cleared;
+      spdlog::info("CLEAR {}", message);
+    }
+    EventRow row;
+    row.finding = finding;
+    row.message = std::move(message);
+    row.source = source;
+    row.recorded_ms = clock_.NowMs();
+    writer_.AddEvent(std::move(row));
+  }
+}
+
+void LineEngine::OnCounters(const IngestCounters& before, const IngestCounters& after) {
+  totals_.records += after.records - before.records;
+  totals_.accepted += after.accepted - before.accepted;
+  totals_.malformed += after.malformed - before.malformed;
+  totals_.refused += after.refused - before.refused;
+}
+
+void LineEngine::AdvanceClock() {
+  tick_findings_.clear();
+  plant_.AdvanceTo(clock_.NowMs(), totals_.records, &tick_findings_);
+  OnFindings(kTimerSource, tick_findings_);
+}
+
+}  // namespace heft
