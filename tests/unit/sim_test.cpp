@@ -103,7 +103,7 @@ TEST_CASE("uniform and normal known answers", "[sim]") {
   CHECK(normal.Normal() == Approx(-1.4615153259586555).epsilon(1e-13));
 }
 
-TEST_CASE("uniform stays in [0, 1) with mean 1/2", "[sim]") {
+TEST_CASE("uniform stays in the half-open unit interval with mean 1/2", "[sim]") {
   RandomSource rng(99);
   const int n = 1000000;
   double sum = 0;
