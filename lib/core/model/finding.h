@@ -46,6 +46,8 @@ struct Finding {
   std::optional<double> level_g;       // estimated current level (mean) in grams
   std::optional<double> period_packs;  // cycle length, where it applies
   std::optional<int> head;             // filler head, where it applies
+  std::optional<double> period_s;      // cycle length in seconds (from pack times)
+  std::optional<double> slope_g_per_h; // drift: rate of change of the level, grams per hour
   std::string detector;                // which detector decided, e.g. "cusum"
 };
 

@@ -2,20 +2,48 @@
 
 #include <algorithm>
 #include <cmath>
+#include <numbers>
 #include <span>
 
-#include "core/detect/mser.h"
+#include "core/detect/change_shape.h"
+#include "core/detect/settle_fit.h"
 
 namespace heft {
 namespace {
-constexpr std::size_t kRecentWindow = 60;         // packs in the snapshot's rolling level
-constexpr std::int64_t kOutlierQuietPacks = 50;   // clean packs that close an outlier burst
-constexpr std::int64_t kShiftMinOpenPacks = 20;   // a shift stays open at least this long
-constexpr double kShiftClearEwmaLambda = 0.1;     // EWMA used to see the level return
-constexpr double kShiftAlarmSigma = 1.5;          // shifts this large are alarms, not warnings
-constexpr double kLearnExtensionLimit = 3.0;      // settling may take up to 3 × baseline_packs
+constexpr std::size_t kRecentWindow = 60;        // packs in the snapshot's rolling level
+constexpr std::int64_t kOutlierQuietPacks = 50;  // clean packs that close an outlier burst
+constexpr std::int64_t kMeanMinOpenPacks = 20;   // a shift/drift stays open at least this long
+constexpr double kMeanClearEwmaLambda = 0.1;     // EWMA used to see the level return
+constexpr double kShiftAlarmSigma = 1.5;         // changes this large are alarms, not warnings
+constexpr int kMaxInferredHeads = 64;
+// Shares of the line's false-alarm budget, as multiples of its in-control ARL. The
+// CUSUM (1/2) and individuals limit (1/4) shares are set by DesignDetectors; the EWMA
+// gets 1/4 and the head CUSUMs, run rules, spread, periodogram and stuck test 1/16
+// each: 1.5 budgets in all, so the design aims at two thirds of a false alarm per
+// budgeted period and the measured rate has room for approximation error.
+constexpr double kEwmaShare = 4.0;
+constexpr double kMinorShare = 16.0;
+constexpr std::size_t kShapePrePacks = 30;  // packs before the onset in the shape fit
+constexpr double kRampMargin = 0.0;         // SSE (in σ²) a ramp must beat a step by
+constexpr std::size_t kMinRampPacks = 25;   // a "ramp" shorter than this is a step
 
 int Slot(FindingKind kind) { return static_cast<int>(kind); }
+
+std::size_t CycleWindow(const LineSettings& s) {
+  std::size_t n = 16;
+  while (n < static_cast<std::size_t>(std::max(16, s.cycle_window_packs))) n *= 2;
+  return n;
+}
+
+// Variance of the mean of n AR(1) values relative to σ²/n: 1 + 2Σ(1 − k/n)φᵏ.
+double MeanVarianceFactor(int n, double phi) {
+  double s = 1.0, pk = 1.0;
+  for (int k = 1; k < n; ++k) {
+    pk *= phi;
+    s += 2.0 * (1.0 - static_cast<double>(k) / n) * pk;
+  }
+  return std::max(0.1, s);
+}
 }  // namespace
 
 LineMonitor::LineMonitor(std::string line, const LineSettings& settings)
@@ -23,8 +51,32 @@ LineMonitor::LineMonitor(std::string line, const LineSettings& settings)
       settings_(settings),
       design_(DesignDetectors(settings.false_alarms_per_day, settings.pack_rate_per_min,
                               settings.min_shift_sigma)),
-      cusum_(design_.cusum_k, design_.cusum_h),
-      recent_(kRecentWindow) {}
+      cusum_up_(design_.cusum_k, design_.cusum_h),
+      cusum_down_(design_.cusum_k, design_.cusum_h),
+      // L for the EWMA's share, by the Brook–Evans chain (ewma_chart.h). λ and L are
+      // computed here because DetectorDesign does not carry them (yet).
+      ewma_(settings.drift_lambda,
+            EwmaChart::LimitForArl(settings.drift_lambda, kEwmaShare * design_.arl0_packs)),
+      head_cusums_(0, 1.0, 6.0),
+      rules_(RunRuleSettings::Published()),
+      spread_(5, 0.5, 5.0),
+      cycles_(CycleWindow(settings)),
+      stuck_(settings.stuck_packs),
+      recent_(kRecentWindow) {
+  cusum_k_ = design_.cusum_k;
+  cusum_h_ = design_.cusum_h;
+  learn_capacity_ = static_cast<std::size_t>(std::max(
+      {4 * std::max(30, settings_.baseline_packs), settings_.settling_alarm_packs + 300, 600}));
+  learn_values_.reserve(learn_capacity_);
+  learn_heads_.reserve(learn_capacity_);
+  learn_indexes_.reserve(learn_capacity_);
+  ring_.resize(cycles_.window());
+  cycle_buffer_.resize(cycles_.window());
+  scratch_.reserve(cycles_.window());
+  stuck_chance_ = 1.0 / (kMinorShare * design_.arl0_packs);
+  const double hop = std::max(1, settings_.cycle_every_packs);
+  cycle_p_threshold_ = hop / (kMinorShare * design_.arl0_packs);
+}
 
 Finding LineMonitor::Make(Transition transition, FindingKind kind, Severity severity,
                           const Pack& at) const {
@@ -39,17 +91,32 @@ Finding LineMonitor::Make(Transition transition, FindingKind kind, Severity seve
 }
 
 void LineMonitor::Emit(Finding finding, std::vector<Finding>* out) {
-  open_[Slot(finding.kind)] = finding.transition == Transition::kRaised;
+  const int slot = Slot(finding.kind);
+  open_[slot] = finding.transition == Transition::kRaised;
+  if (open_[slot]) raised_at_[slot] = finding.at;
+  if (finding.transition == Transition::kRaised && finding.kind != FindingKind::kSettling &&
+      finding.kind != FindingKind::kSilence) {
+    block_clean_ = false;  // something happened: this block does not teach the baseline
+  }
   out->push_back(std::move(finding));
 }
 
+void LineMonitor::Clear(FindingKind kind, const Pack& at, const char* detector,
+                        std::vector<Finding>* out) {
+  if (!open_[Slot(kind)]) return;
+  Finding cleared = Make(Transition::kCleared, kind, Severity::kInfo, at);
+  cleared.detector = detector;
+  if (kind == FindingKind::kShift || kind == FindingKind::kDrift) cleared.level_g = recent_.Mean();
+  Emit(std::move(cleared), out);
+}
+
 bool LineMonitor::IsGross(double grams) const {
-  if (!(grams > 0.0)) return true;
+  if (!(grams > 0.0) || !std::isfinite(grams)) return true;
   double reference = 0.0;
   if (settings_.nominal_g) {
     reference = *settings_.nominal_g;
   } else if (phase_ == Phase::kRunning) {
-    reference = baseline_mean_;
+    reference = baseline_.level();
   } else {
     return false;
   }
@@ -94,6 +161,7 @@ void LineMonitor::Push(const Pack& pack, std::vector<Finding>* out) {
     NoteOutlier(pack, "gross_pack", out);
     return;
   }
+  RunStuck(pack, out);
   if (phase_ == Phase::kSettling) {
     Learn(pack, out);
   } else {
@@ -102,112 +170,544 @@ void LineMonitor::Push(const Pack& pack, std::vector<Finding>* out) {
 }
 
 void LineMonitor::Start(const Pack& pack, std::vector<Finding>* out) {
-  // A new start holds mean alarms: close what the old run left open.
-  for (FindingKind kind : {FindingKind::kShift, FindingKind::kOutlier}) {
-    if (!open_[Slot(kind)]) continue;
-    Finding cleared = Make(Transition::kCleared, kind, Severity::kInfo, pack);
-    cleared.detector = "restart";
-    Emit(std::move(cleared), out);
+  // A new start holds mean and cycle alarms: close what the old run left open.
+  for (FindingKind kind : {FindingKind::kShift, FindingKind::kDrift, FindingKind::kOscillation,
+                           FindingKind::kSpread, FindingKind::kStuck, FindingKind::kOutlier}) {
+    Clear(kind, pack, "restart", out);
   }
   phase_ = Phase::kSettling;
   learn_values_.clear();
+  learn_heads_.clear();
   learn_indexes_.clear();
   learn_target_ = static_cast<std::size_t>(std::max(30, settings_.baseline_packs));
+  start_index_ = pack.index;
+  settling_alarmed_ = false;
   recent_.Clear();
+  stuck_.Reset();
+  ring_count_ = 0;
+  ring_next_ = 0;
+  outlier_side_run_ = 0;
   if (!open_[Slot(FindingKind::kSettling)]) {
     Finding raised = Make(Transition::kRaised, FindingKind::kSettling, Severity::kInfo, pack);
     raised.onset = pack.index;
     raised.onset_time_ms = pack.time_ms;
-    raised.detector = "mser5";
+    raised.detector = "settle_fit";
     Emit(std::move(raised), out);
   }
 }
 
 void LineMonitor::Learn(const Pack& pack, std::vector<Finding>* out) {
   recent_.Add(pack.grams);
-  learn_values_.push_back(pack.grams);
-  learn_indexes_.push_back(pack.index);
-  if (learn_values_.size() < learn_target_) return;
+  if (learn_values_.size() < learn_capacity_) {
+    learn_values_.push_back(pack.grams);
+    learn_heads_.push_back(pack.head);
+    learn_indexes_.push_back(pack.index);
+  }
+  const std::size_t n = learn_values_.size();
+  if (!settling_alarmed_ &&
+      static_cast<std::int64_t>(n) >= std::max(1, settings_.settling_alarm_packs)) {
+    settling_alarmed_ = true;
+    Finding alarm = Make(Transition::kRaised, FindingKind::kSettling, Severity::kAlarm, pack);
+    alarm.onset = start_index_;
+    alarm.level_g = recent_.Mean();
+    alarm.detector = "settling_limit";
+    Emit(std::move(alarm), out);
+  }
+  if (n < learn_target_) return;
 
-  const MserResult cut = MserBatched(std::span<const double>(learn_values_), 5);
-  const auto limit = static_cast<std::size_t>(kLearnExtensionLimit * settings_.baseline_packs);
-  if (cut.at_search_limit && learn_values_.size() < limit) {
-    // The best cut is as late as MSER may look: the level is still moving.
-    learn_target_ += static_cast<std::size_t>(std::max(15, settings_.baseline_packs / 2));
+  const std::size_t min_after =
+      static_cast<std::size_t>(std::max(30, std::max(30, settings_.baseline_packs) / 3));
+  const SettleEstimate est = EstimateSettling(std::span<const double>(learn_values_), min_after);
+  if (!est.settled && n < learn_capacity_) {
+    // Not settled yet (or too few settled packs): look again when there may be.
+    const std::size_t wanted = std::max(n + 25, est.settle_at + min_after);
+    learn_target_ = std::min(learn_capacity_, wanted);
     return;
   }
-  const std::span<const double> kept(learn_values_.data() + cut.truncate,
-                                     learn_values_.size() - cut.truncate);
-  RollingMoments moments(kept.size());
-  for (double x : kept) moments.Add(x);
-  baseline_mean_ = moments.Mean();
-  double sigma = moments.MovingRangeSigma();
-  if (!(sigma > 0.0)) sigma = moments.StdDev();
-  // A floor keeps z finite on a line whose readings never change; the stuck
-  // detector, not a division by zero, is what should speak about that.
-  baseline_sigma_ = std::max(sigma, 1e-6 * std::max(1.0, std::fabs(baseline_mean_)));
+  const std::size_t settle_at = std::min(est.settle_at, n > min_after ? n - min_after : 0);
+  FinishSettling(pack, settle_at, out);
+}
+
+void LineMonitor::FinishSettling(const Pack& pack, std::size_t settle_at,
+                                 std::vector<Finding>* out) {
+  const std::size_t n = learn_values_.size();
+  // Heads: from the settings, else learnt from the packs when every pack names one.
+  heads_ = settings_.heads;
+  if (heads_ <= 0) {
+    int max_head = -1;
+    bool all = true;
+    for (int h : learn_heads_) {
+      if (h < 0) all = false;
+      max_head = std::max(max_head, h);
+    }
+    heads_ = all && max_head >= 1 && max_head < kMaxInferredHeads ? max_head + 1 : 0;
+  }
+  baseline_.Learn(std::span<const double>(learn_values_.data() + settle_at, n - settle_at),
+                  std::span<const int>(learn_heads_.data() + settle_at, n - settle_at), heads_);
+
+  // Designs that depend on what was learnt.
+  inflation_ = baseline_.AutocorrelationInflation();
+  const DetectorDesign mean_design =
+      DesignDetectors(settings_.false_alarms_per_day, settings_.pack_rate_per_min,
+                      settings_.min_shift_sigma / inflation_);
+  cusum_k_ = mean_design.cusum_k;
+  cusum_h_ = mean_design.cusum_h;
+  cusum_up_ = TabularCusum(cusum_k_, cusum_h_);
+  cusum_down_ = TabularCusum(cusum_k_, cusum_h_);
+  cusum_up_.Reset(cusum_h_ / 2.0);  // 50 % head start (fast initial response)
+  cusum_down_.Reset(cusum_h_ / 2.0);
+  ewma_.Reset();
+
+  if (heads_ >= 2) {
+    head_k_ = std::max(0.25, settings_.head_shift_sigma / 2.0);
+    head_h_ = CusumDecisionInterval(head_k_, kMinorShare * design_.arl0_packs);
+    head_cusums_ = HeadCusums(heads_, head_k_, head_h_);
+  } else {
+    head_cusums_ = HeadCusums(0, 1.0, 6.0);
+  }
+  subgroup_n_ =
+      settings_.subgroup_packs > 0 ? settings_.subgroup_packs : (heads_ >= 2 ? heads_ : 5);
+  subgroup_count_ = 0;
+  subgroup_sum_ = 0.0;
+  RunRuleSettings rs =
+      RunRuleSettings::ForInControlArl(kMinorShare * design_.arl0_packs / subgroup_n_);
+  if (settings_.run_one_side_count > 0) rs.one_side_run = settings_.run_one_side_count;
+  if (settings_.run_trend_count > 0) rs.trend_run = settings_.run_trend_count;
+  if (settings_.run_sawtooth_count > 0) rs.sawtooth_run = settings_.run_sawtooth_count;
+  if (settings_.run_hugging_count > 0) rs.hugging_run = settings_.run_hugging_count;
+  if (settings_.run_avoiding_count > 0) rs.avoiding_run = settings_.run_avoiding_count;
+  if (!settings_.run_rules) std::fill(std::begin(rs.enabled), std::end(rs.enabled), false);
+  rules_ = RunRules(rs);
+
+  const int spread_n = heads_ >= 2 ? heads_ : 5;
+  {
+    const LogVarianceCusum probe(spread_n, 0.0, 1.0);
+    const double shift = 2.0 * std::log(std::max(1.01, settings_.spread_ratio)) / probe.LogSd();
+    spread_k_ = shift / 2.0;
+    // One-sided ARL A is about twice the two-sided one the design function solves for.
+    spread_h_ = CusumDecisionInterval(spread_k_, 0.5 * kMinorShare * design_.arl0_packs / spread_n);
+  }
+  spread_ = LogVarianceCusum(spread_n, spread_k_, spread_h_,
+                             LogVarianceCusum::ExpectedVarianceRatio(spread_n, baseline_.phi()));
+  stuck_.set_min_run(
+      StuckReading::MinRunFor(stuck_.RepeatRate(), stuck_chance_, settings_.stuck_packs));
+  since_cycle_test_ = 0;
+  block_count_ = 0;
+  block_clean_ = true;
+  ring_count_ = ring_next_ = 0;
+  last_z_ = 0.0;
+  UpdateAllowances();
 
   phase_ = Phase::kRunning;
-  cusum_.Reset(design_.cusum_h / 2.0);  // 50 % head start (fast initial response)
   Finding cleared = Make(Transition::kCleared, FindingKind::kSettling, Severity::kInfo, pack);
   cleared.onset = learn_indexes_.front();
-  cleared.end = learn_indexes_[cut.truncate];
-  cleared.level_g = baseline_mean_;
-  cleared.detector = "mser5";
+  cleared.end = learn_indexes_[std::min(settle_at, n - 1)];
+  cleared.level_g = baseline_.level();
+  cleared.detector = "settle_fit";
   Emit(std::move(cleared), out);
   learn_values_.clear();
-  learn_values_.shrink_to_fit();
+  learn_heads_.clear();
   learn_indexes_.clear();
-  learn_indexes_.shrink_to_fit();
+}
+
+void LineMonitor::UpdateAllowances() {
+  sigma_eff_ = baseline_.sigma() * (1.0 + baseline_.SigmaRelError());
+  // Level error in the units the mean detectors see (z / inflation).
+  level_allow_ = baseline_.LevelStdError() / inflation_;
+  subgroup_sd_ = std::sqrt(MeanVarianceFactor(subgroup_n_, baseline_.phi()) / subgroup_n_);
+  head_allow_.assign(static_cast<std::size_t>(std::max(0, heads_)), 0.0);
+  for (int h = 0; h < heads_; ++h) {
+    head_allow_[static_cast<std::size_t>(h)] = baseline_.OffsetStdError(h);
+  }
+}
+
+const LineMonitor::Entry& LineMonitor::Recent(std::size_t back) const {
+  const std::size_t cap = ring_.size();
+  return ring_[(ring_next_ + cap - 1 - back) % cap];
+}
+
+double LineMonitor::PacksPerHour() const {
+  if (ring_count_ < 2) return settings_.pack_rate_per_min * 60.0;
+  const Entry& newest = Recent(0);
+  const Entry& oldest = Recent(ring_count_ - 1);
+  const double span_ms = static_cast<double>(newest.time_ms - oldest.time_ms);
+  if (!(span_ms > 0.0)) return settings_.pack_rate_per_min * 60.0;
+  return static_cast<double>(ring_count_ - 1) * 3.6e6 / span_ms;
 }
 
 void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
   recent_.Add(pack.grams);
-  const double z = (pack.grams - baseline_mean_) / baseline_sigma_;
-  if (std::fabs(z) > design_.individuals_limit) {
+  double z = baseline_.Residual(pack.grams, pack.head) / sigma_eff_;
+  bool outlier = false;
+  // While a mean change is open, wild packs are judged from the level it moved to.
+  const bool mean_open = open_[Slot(FindingKind::kShift)] || open_[Slot(FindingKind::kDrift)];
+  const double centre = mean_open ? mean_clear_ewma_ : 0.0;
+  if (std::fabs(z - centre) > design_.individuals_limit) {
     NoteOutlier(pack, "individuals_limit", out);
+    const int side = z > centre ? 1 : -1;
+    outlier_side_run_ = (outlier_side_run_ * side > 0) ? outlier_side_run_ + side : side;
+    // An isolated wild pack says nothing about the process mean; a second one in a row
+    // on the same side may be a large step, so it goes in, clipped to the limit.
+    if (std::abs(outlier_side_run_) < 2) {
+      RefreshBaseline(pack, false);
+      return;
+    }
+    z = std::clamp(z, centre - design_.individuals_limit, centre + design_.individuals_limit);
+    outlier = true;
   } else {
+    outlier_side_run_ = 0;
     MaybeCloseOutlierBurst(pack, out);
   }
+  if (open_[Slot(FindingKind::kStuck)]) {  // a frozen reading is not a weight
+    RefreshBaseline(pack, false);
+    return;
+  }
+  Entry& e = ring_[ring_next_];
+  e.z = z;
+  e.white = z - baseline_.phi() * last_z_;
+  e.index = pack.index;
+  e.time_ms = pack.time_ms;
+  e.head = pack.head;
+  ring_next_ = (ring_next_ + 1) % ring_.size();
+  ring_count_ = std::min(ring_count_ + 1, ring_.size());
+  last_z_ = z;
 
-  const int shift_slot = Slot(FindingKind::kShift);
-  if (open_[shift_slot]) {
-    shift_ewma_ += kShiftClearEwmaLambda * (z - shift_ewma_);
-    if (pack.index - shift_raised_index_ >= kShiftMinOpenPacks &&
-        std::fabs(shift_ewma_) < design_.cusum_k) {
-      Finding cleared = Make(Transition::kCleared, FindingKind::kShift, Severity::kInfo, pack);
-      cleared.level_g = recent_.Mean();
-      cleared.detector = "cusum";
-      Emit(std::move(cleared), out);
-      cusum_.Reset(design_.cusum_h / 2.0);
+  RunMean(pack, z, out);
+  RunHeads(pack, z, out);
+  RunSubgroup(pack, z, out);
+  RunSpread(pack, z, out);
+  RunCycles(pack, out);
+  RefreshBaseline(pack, !outlier);
+}
+
+void LineMonitor::RunMean(const Pack& pack, double z, std::vector<Finding>* out) {
+  const bool open = open_[Slot(FindingKind::kShift)] || open_[Slot(FindingKind::kDrift)];
+  if (open) {
+    const FindingKind kind =
+        open_[Slot(FindingKind::kShift)] ? FindingKind::kShift : FindingKind::kDrift;
+    mean_clear_ewma_ += kMeanClearEwmaLambda * (z - mean_clear_ewma_);
+    if (pack.index - raised_at_[Slot(kind)] >= kMeanMinOpenPacks &&
+        std::fabs(mean_clear_ewma_) < cusum_k_ * inflation_) {
+      Clear(kind, pack, kind == FindingKind::kShift ? "cusum" : "ewma", out);
+      cusum_up_.Reset(cusum_h_ / 2.0);
+      cusum_down_.Reset(cusum_h_ / 2.0);
+      ewma_.Reset();
     }
     return;
   }
-  const TabularCusum::Signal signal = cusum_.Update(z, pack.index);
-  if (signal == TabularCusum::Signal::kNone) return;
-
-  const double shift_sigma = cusum_.EstimatedShift(signal);
-  const bool up = signal == TabularCusum::Signal::kUp;
-  Finding raised = Make(Transition::kRaised, FindingKind::kShift,
-                        std::fabs(shift_sigma) >= kShiftAlarmSigma ? Severity::kAlarm
-                                                                   : Severity::kWarning,
-                        pack);
-  raised.onset = up ? cusum_.upper_onset() : cusum_.lower_onset();
-  raised.size_sigma = shift_sigma;
-  raised.size_g = shift_sigma * baseline_sigma_;
-  raised.level_g = baseline_mean_ + shift_sigma * baseline_sigma_;
-  raised.detector = "cusum";
-  Emit(std::move(raised), out);
-  shift_ewma_ = shift_sigma;
-  shift_raised_index_ = pack.index;
-  cusum_.Reset(0.0);
+  const double zc = z / inflation_;
+  cusum_up_.Update(zc - level_allow_, pack.index);
+  cusum_down_.Update(zc + level_allow_, pack.index);
+  const EwmaChart::Signal ew = ewma_.Update(zc, level_allow_);
+  if (cusum_up_.upper() > cusum_h_) {
+    RaiseMean(pack, "cusum", +1,
+              (cusum_up_.EstimatedShift(TabularCusum::Signal::kUp) + level_allow_) * inflation_,
+              cusum_up_.upper_onset(), out);
+  } else if (cusum_down_.lower() > cusum_h_) {
+    RaiseMean(pack, "cusum", -1,
+              (cusum_down_.EstimatedShift(TabularCusum::Signal::kDown) - level_allow_) * inflation_,
+              cusum_down_.lower_onset(), out);
+  } else if (ew != EwmaChart::Signal::kNone) {
+    const bool up = ew == EwmaChart::Signal::kUp;
+    std::optional<std::int64_t> onset;
+    if (up && cusum_up_.upper() > 0.0) onset = cusum_up_.upper_onset();
+    if (!up && cusum_down_.lower() > 0.0) onset = cusum_down_.lower_onset();
+    RaiseMean(pack, "ewma", up ? 1 : -1, ewma_.value() * inflation_, onset, out);
+  }
 }
 
-void LineMonitor::NoteOutlier(const Pack& pack, const char* detector,
-                              std::vector<Finding>* out) {
+void LineMonitor::RaiseMean(const Pack& pack, const char* detector, int side, double cusum_shift,
+                            std::optional<std::int64_t> cusum_onset, std::vector<Finding>* out) {
+  // The window for the shape fit: from a little before the estimated onset to now.
+  std::size_t back = std::min<std::size_t>(
+      ring_count_, 2 * static_cast<std::size_t>(3.0 / settings_.drift_lambda));
+  if (cusum_onset) {
+    std::size_t since = 0;
+    while (since < ring_count_ && Recent(since).index >= *cusum_onset) ++since;
+    back = std::min(ring_count_, std::max<std::size_t>(since + kShapePrePacks, 3 * since));
+  }
+  back = std::max<std::size_t>(std::min<std::size_t>(back, ring_count_), 1);
+  scratch_.clear();
+  for (std::size_t i = back; i-- > 0;) scratch_.push_back(Recent(i).z);
+  const ChangeShape shape = FitChangeShape(scratch_, kRampMargin, kMinRampPacks);
+  const double z_to_sigma = sigma_eff_ / baseline_.sigma();
+  const bool ramp = shape.ramp && shape.slope * side > 0.0;
+  const FindingKind kind = ramp ? FindingKind::kDrift : FindingKind::kShift;
+
+  double size_sigma = 0.0;
+  Finding raised = Make(Transition::kRaised, kind, Severity::kWarning, pack);
+  if (ramp) {
+    const double packs = static_cast<double>(back - shape.ramp_at);
+    size_sigma = shape.slope * packs * z_to_sigma;
+    raised.onset = Recent(back - 1 - shape.ramp_at).index;
+    raised.onset_time_ms = Recent(back - 1 - shape.ramp_at).time_ms;
+    raised.slope_g_per_h = shape.slope * sigma_eff_ * PacksPerHour();
+  } else {
+    size_sigma = std::string_view(detector) == "cusum" ? cusum_shift : shape.step_size * z_to_sigma;
+    if (std::string_view(detector) != "cusum" && size_sigma * side <= 0.0) size_sigma = cusum_shift;
+    if (cusum_onset && std::string_view(detector) == "cusum") {
+      raised.onset = *cusum_onset;
+    } else {
+      raised.onset = Recent(back - 1 - shape.step_at).index;
+    }
+  }
+  raised.severity =
+      std::fabs(size_sigma) >= kShiftAlarmSigma ? Severity::kAlarm : Severity::kWarning;
+  raised.size_sigma = size_sigma;
+  raised.size_g = size_sigma * baseline_.sigma();
+  raised.level_g = baseline_.level() + size_sigma * baseline_.sigma();
+  raised.detector = std::string(detector) + (ramp ? "+ramp_fit" : "+step_fit");
+  Emit(std::move(raised), out);
+  mean_clear_ewma_ = size_sigma;
+  cusum_up_.Reset(0.0);
+  cusum_down_.Reset(0.0);
+  ewma_.Reset();
+}
+
+void LineMonitor::RunHeads(const Pack& pack, double z, std::vector<Finding>* out) {
+  if (head_cusums_.heads() < 2 || pack.head < 0 || pack.head >= head_cusums_.heads()) return;
+  const double allowance = head_allow_[static_cast<std::size_t>(pack.head)];
+  const std::optional<HeadSignal> s = head_cusums_.Update(pack.head, z, pack.index, allowance);
+  if (!s || open_[Slot(FindingKind::kOscillation)]) return;
+  Finding raised = Make(
+      Transition::kRaised, FindingKind::kOscillation,
+      std::fabs(s->shift) >= 2.0 * kShiftAlarmSigma ? Severity::kAlarm : Severity::kWarning, pack);
+  raised.onset = s->onset;
+  raised.head = s->head;
+  raised.period_packs = static_cast<double>(HeadPatternPeriod());
+  raised.period_s = static_cast<double>(heads_) * 3600.0 / PacksPerHour();
+  raised.size_sigma = s->shift * sigma_eff_ / baseline_.sigma();
+  raised.size_g = *raised.size_sigma * baseline_.sigma();
+  raised.level_g = baseline_.level() + baseline_.offset(s->head) + *raised.size_g;
+  raised.detector = "head_cusum";
+  Emit(std::move(raised), out);
+}
+
+int LineMonitor::HeadPatternPeriod() const {
+  // Per-head means over the recent window; the smallest divisor P of the head count
+  // whose P-periodic pattern explains 75 % of their spread is the period (alternating
+  // packs on an even filler look like every other head off; one bad head gives P = heads).
+  std::array<double, kMaxInferredHeads> sum{};
+  std::array<int, kMaxInferredHeads> count{};
+  const int heads = std::min(heads_, kMaxInferredHeads);
+  for (std::size_t i = 0; i < ring_count_; ++i) {
+    const Entry& e = Recent(i);
+    if (e.head >= 0 && e.head < heads) {
+      sum[static_cast<std::size_t>(e.head)] += e.z;
+      ++count[static_cast<std::size_t>(e.head)];
+    }
+  }
+  std::array<double, kMaxInferredHeads> mean{};
+  double grand = 0.0;
+  for (int h = 0; h < heads; ++h) {
+    const auto u = static_cast<std::size_t>(h);
+    if (count[u] == 0) return heads;
+    mean[u] = sum[u] / count[u];
+    grand += mean[u] / heads;
+  }
+  double total = 0.0;
+  for (int h = 0; h < heads; ++h)
+    total +=
+        (mean[static_cast<std::size_t>(h)] - grand) * (mean[static_cast<std::size_t>(h)] - grand);
+  if (!(total > 0.0)) return heads;
+  for (int p = 2; p < heads; ++p) {
+    if (heads % p != 0) continue;
+    double within = 0.0;
+    for (int c = 0; c < p; ++c) {
+      double m = 0.0;
+      int k = 0;
+      for (int h = c; h < heads; h += p, ++k) m += mean[static_cast<std::size_t>(h)];
+      m /= k;
+      for (int h = c; h < heads; h += p)
+        within += (mean[static_cast<std::size_t>(h)] - m) * (mean[static_cast<std::size_t>(h)] - m);
+    }
+    if (within < 0.25 * total) return p;
+  }
+  return heads;
+}
+
+void LineMonitor::RunSubgroup(const Pack& pack, double z, std::vector<Finding>* out) {
+  subgroup_sum_ += z;
+  if (++subgroup_count_ < subgroup_n_) return;
+  const double mean_z = subgroup_sum_ / subgroup_n_ / subgroup_sd_;
+  subgroup_sum_ = 0.0;
+  subgroup_count_ = 0;
+  const double slack = baseline_.LevelStdError() / subgroup_sd_;
+  const std::optional<RunRuleId> rule = rules_.Update(mean_z, slack);
+  if (!rule) return;
+  const FindingKind kind = RunRuleKind(*rule);
+  const std::string detector = "run_rule:" + std::string(RunRuleName(*rule));
+  if (kind == FindingKind::kShift || kind == FindingKind::kDrift) {
+    if (open_[Slot(FindingKind::kShift)] || open_[Slot(FindingKind::kDrift)]) return;
+    RaiseMean(pack, detector.c_str(), mean_z > 0 ? 1 : -1, mean_z * subgroup_sd_, std::nullopt,
+              out);
+    return;
+  }
+  if (open_[Slot(kind)]) return;
+  Finding raised = Make(Transition::kRaised, kind, Severity::kWarning, pack);
+  raised.onset = pack.index;
+  raised.detector = detector;
+  if (kind == FindingKind::kOscillation && ring_count_ == ring_.size()) {
+    // Say how long the cycle is, if the periodogram can tell.
+    const std::size_t n = ring_.size();
+    for (std::size_t i = 0; i < n; ++i) cycle_buffer_[i] = Recent(n - 1 - i).white;
+    const PeriodicityResult r = cycles_.Evaluate(cycle_buffer_);
+    if (r.p_value < 1e-3) {
+      raised.period_packs = r.period;
+      raised.period_s = r.period * 3600.0 / PacksPerHour();
+    }
+  }
+  Emit(std::move(raised), out);
+}
+
+void LineMonitor::RunSpread(const Pack& pack, double z, std::vector<Finding>* out) {
+  const bool signal = spread_.Add(z);
+  const int slot = Slot(FindingKind::kSpread);
+  if (open_[slot]) {
+    if (pack.index - raised_at_[slot] >= 20 * spread_.subgroup() &&
+        spread_.smoothed() < spread_k_) {
+      Clear(FindingKind::kSpread, pack, "log_variance_cusum", out);
+      spread_.Reset();
+    }
+    return;
+  }
+  if (!signal) return;
+  Finding raised = Make(Transition::kRaised, FindingKind::kSpread, Severity::kWarning, pack);
+  raised.onset = pack.index;
+  // Size: the latest subgroups' sigma ratio, as the sigma now minus the baseline's.
+  const double ratio = std::exp(0.5 * spread_.smoothed() * spread_.LogSd());
+  raised.size_g = (ratio - 1.0) * baseline_.sigma();
+  raised.size_sigma = ratio - 1.0;
+  raised.detector = "log_variance_cusum";
+  Emit(std::move(raised), out);
+  spread_.Reset();
+}
+
+void LineMonitor::RunCycles(const Pack& pack, std::vector<Finding>* out) {
+  if (++since_cycle_test_ < std::max(1, settings_.cycle_every_packs)) return;
+  if (ring_count_ < ring_.size()) return;
+  since_cycle_test_ = 0;
+  const std::size_t n = ring_.size();
+  // Oldest first: the ring from the next write slot round to the newest.
+  for (std::size_t i = 0; i < n; ++i) {
+    const std::size_t at = ring_next_ + i;
+    cycle_buffer_[i] = ring_[at < n ? at : at - n].white;
+  }
+  const PeriodicityResult r = cycles_.Evaluate(cycle_buffer_);
+  const int slot = Slot(FindingKind::kOscillation);
+  // Amplitude back in z units: whitening scaled the cycle by |1 − φe^{−iω}|.
+  const double w = 2.0 * std::numbers::pi / std::max(2.0, r.period);
+  const double phi = baseline_.phi();
+  const double gain = std::sqrt(std::max(1e-6, 1.0 - 2.0 * phi * std::cos(w) + phi * phi));
+  const double amplitude = r.amplitude / gain;
+  if (open_[slot]) {
+    if (pack.index - raised_at_[slot] >= static_cast<std::int64_t>(n) && r.p_value > 1e-2) {
+      bool heads_quiet = true;
+      for (int h = 0; h < head_cusums_.heads(); ++h) {
+        if (head_cusums_.upper(h) > head_h_ / 2.0 || head_cusums_.lower(h) > head_h_ / 2.0) {
+          heads_quiet = false;
+        }
+      }
+      if (heads_quiet) Clear(FindingKind::kOscillation, pack, "periodogram", out);
+    }
+    return;
+  }
+  if (r.p_value > cycle_p_threshold_ || amplitude < settings_.min_cycle_sigma) return;
+  Finding raised = Make(Transition::kRaised, FindingKind::kOscillation, Severity::kWarning, pack);
+  raised.period_packs = r.period;
+  raised.period_s = r.period * 3600.0 / PacksPerHour();
+  raised.onset = Recent(n - 1).index;
+  raised.size_sigma = amplitude * sigma_eff_ / baseline_.sigma();
+  raised.size_g = *raised.size_sigma * baseline_.sigma();
+  raised.detector = "periodogram";
+  // A period that divides the head count is a head pattern: name the head that
+  // deviates most over the window.
+  if (heads_ >= 2) {
+    const double turns = heads_ / r.period;
+    if (std::fabs(turns - std::round(turns)) < 0.1 * std::max(1.0, std::round(turns)) &&
+        std::round(turns) >= 1.0) {
+      std::array<double, kMaxInferredHeads> sum{};
+      std::array<int, kMaxInferredHeads> count{};
+      for (std::size_t i = 0; i < n; ++i) {
+        const Entry& e = Recent(i);
+        if (e.head >= 0 && e.head < heads_ && e.head < kMaxInferredHeads) {
+          sum[static_cast<std::size_t>(e.head)] += e.z;
+          ++count[static_cast<std::size_t>(e.head)];
+        }
+      }
+      int worst = -1;
+      double worst_mean = 0.0;
+      for (int h = 0; h < std::min(heads_, kMaxInferredHeads); ++h) {
+        if (count[static_cast<std::size_t>(h)] == 0) continue;
+        const double m = sum[static_cast<std::size_t>(h)] / count[static_cast<std::size_t>(h)];
+        if (worst < 0 || std::fabs(m) > std::fabs(worst_mean)) {
+          worst = h;
+          worst_mean = m;
+        }
+      }
+      if (worst >= 0) {
+        raised.head = worst;
+        raised.size_sigma = worst_mean * sigma_eff_ / baseline_.sigma();
+        raised.size_g = *raised.size_sigma * baseline_.sigma();
+      }
+    }
+  }
+  Emit(std::move(raised), out);
+}
+
+void LineMonitor::RunStuck(const Pack& pack, std::vector<Finding>* out) {
+  const StuckReading::Event e = stuck_.Update(pack.grams);
+  if (stuck_.run() == 1) stuck_start_index_ = pack.index;
+  if (e == StuckReading::Event::kStuck && !open_[Slot(FindingKind::kStuck)]) {
+    Finding raised = Make(Transition::kRaised, FindingKind::kStuck, Severity::kAlarm, pack);
+    raised.onset = stuck_start_index_;
+    raised.level_g = pack.grams;
+    raised.detector = "stuck_reading";
+    Emit(std::move(raised), out);
+  } else if (e == StuckReading::Event::kReleased && open_[Slot(FindingKind::kStuck)]) {
+    Finding cleared = Make(Transition::kCleared, FindingKind::kStuck, Severity::kInfo, pack);
+    cleared.onset = stuck_start_index_;
+    cleared.end = last_index_ > 0 ? pack.index : pack.index;
+    cleared.detector = "stuck_reading";
+    Emit(std::move(cleared), out);
+    stuck_start_index_ = pack.index;
+  }
+}
+
+void LineMonitor::RefreshBaseline(const Pack& pack, bool clean) {
+  bool any_open = false;
+  for (FindingKind kind : {FindingKind::kShift, FindingKind::kDrift, FindingKind::kOscillation,
+                           FindingKind::kSpread, FindingKind::kStuck}) {
+    any_open = any_open || open_[Slot(kind)];
+  }
+  if (any_open) block_clean_ = false;
+  if (clean && block_clean_) baseline_.Accumulate(pack.grams, pack.head);
+  if (++block_count_ < std::max(50, settings_.baseline_block_packs)) return;
+  // Take the block in only if nothing happened and the mean detectors are quiet.
+  const bool quiet = cusum_up_.upper() < cusum_h_ / 2.0 && cusum_down_.lower() < cusum_h_ / 2.0 &&
+                     std::fabs(ewma_.value()) < ewma_.HalfWidth() / 2.0;
+  if (block_clean_ && quiet) {
+    baseline_.CommitBlock();
+    UpdateAllowances();
+  } else {
+    baseline_.DiscardBlock();
+  }
+  block_count_ = 0;
+  block_clean_ = true;
+}
+
+void LineMonitor::NoteOutlier(const Pack& pack, const char* detector, std::vector<Finding>* out) {
   outlier_last_index_ = pack.index;
+  block_clean_ = false;
   if (open_[Slot(FindingKind::kOutlier)]) {
-    ++outlier_count_;
+    if (++outlier_count_ == std::max(2, settings_.outlier_burst_packs)) {
+      // Escalation: a burst of wild packs is a process problem, not chance.
+      Finding alarm = Make(Transition::kRaised, FindingKind::kOutlier, Severity::kAlarm, pack);
+      alarm.onset = raised_at_[Slot(FindingKind::kOutlier)];
+      alarm.size_g = static_cast<double>(outlier_count_);  // packs in the burst so far
+      alarm.detector = "outlier_burst";
+      Emit(std::move(alarm), out);
+    }
     return;
   }
   outlier_count_ = 1;
@@ -216,8 +716,8 @@ void LineMonitor::NoteOutlier(const Pack& pack, const char* detector,
   raised.onset_time_ms = pack.time_ms;
   raised.level_g = pack.grams;
   if (phase_ == Phase::kRunning) {
-    raised.size_g = pack.grams - baseline_mean_;
-    raised.size_sigma = (pack.grams - baseline_mean_) / baseline_sigma_;
+    raised.size_g = pack.grams - baseline_.level();
+    raised.size_sigma = (pack.grams - baseline_.level()) / baseline_.sigma();
   }
   raised.detector = detector;
   Emit(std::move(raised), out);
@@ -257,8 +757,8 @@ LineSnapshot LineMonitor::Snapshot() const {
   s.settling = phase_ == Phase::kSettling;
   s.level_g = recent_.Mean();
   s.sigma_g = recent_.MovingRangeSigma();
-  s.baseline_level_g = baseline_mean_;
-  s.baseline_sigma_g = baseline_sigma_;
+  s.baseline_level_g = baseline_.level();
+  s.baseline_sigma_g = baseline_.sigma();
   s.open_findings = static_cast<int>(std::count(std::begin(open_), std::end(open_), true));
   return s;
 }

@@ -3,23 +3,44 @@
 // Push(pack) returns findings. Phases after each start (first pack, or a
 // return after a silence):
 //
-//   start ──▶ settling (learn) ──MSER-5 cut──▶ running ──silence──▶ start
+//   start ──▶ settling (learn) ──settle fit──▶ running ──silence──▶ start
 //             raise `settling`   clear `settling`, end = first settled pack
 //
-// While running: a two-sided tabular CUSUM on standardised packs (shift), an
-// individuals limit and a gross-pack check (outlier bursts), both sized from
-// the line's false-alarm budget (detector_design.h). Mean alarms are held
-// while settling. Gross packs and weighing errors never enter the statistics.
+// Settling: MSER-5 plus a fitted decay (first order or under-damped, settle_fit.h);
+// an alarm if it lasts longer than `settling_alarm_packs`. Mean and cycle alarms
+// are held while settling.
+// Running, on residuals z = (pack − level − head offset)/σ from RobustBaseline:
+//   shift        FIR tabular CUSUM (onset, size)            ┐ step-vs-ramp fit
+//   drift        EWMA, small λ                              ┘ (change_shape.h) decides
+//   run rules    Western Electric / Nelson on subgroup means (run_rules.h)
+//   oscillation  per-head CUSUMs (names the head) and a periodogram (period)
+//   spread       CUSUM on the log of subgroup variances
+//   stuck        identical readings in a row (all phases)
+//   outlier      gross packs and packs beyond the individuals limit; a burst is an alarm
+// Every threshold comes from the line's false-alarm budget (detector_design.h), with
+// allowances for autocorrelation (σ of means inflated by √((1+φ)/(1−φ))) and for the
+// baseline's own estimation error (shrinking as checked packs are taken in).
 //
-// Invariants: baseline sigma > 0 once running; at most one open finding per
-// kind. Pure and deterministic; not thread-safe (owned by one Plant).
+// Invariants: baseline sigma > 0 once running; at most one open finding per kind
+// (an escalation re-raises the open kind with severity alarm). No allocation per pack
+// once constructed (buffers are sized up front). Pure and deterministic; not
+// thread-safe (owned by one Plant).
 #pragma once
 
+#include <array>
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <vector>
 
 #include "core/detect/detector_design.h"
+#include "core/detect/ewma_chart.h"
+#include "core/detect/head_cusum.h"
+#include "core/detect/log_variance_cusum.h"
+#include "core/detect/periodicity_test.h"
+#include "core/detect/robust_baseline.h"
+#include "core/detect/run_rules.h"
+#include "core/detect/stuck_reading.h"
 #include "core/detect/tabular_cusum.h"
 #include "core/model/finding.h"
 #include "core/model/pack.h"
@@ -46,20 +67,48 @@ class LineMonitor {
   const DetectorDesign& design() const { return design_; }
   bool has_packs() const { return packs_ > 0; }
   bool silent() const { return open_[static_cast<int>(FindingKind::kSilence)]; }
+  bool is_open(FindingKind kind) const { return open_[static_cast<int>(kind)]; }
   std::int64_t last_time_ms() const { return last_time_ms_; }
   LineSnapshot Snapshot() const;
+  const RobustBaseline& baseline() const { return baseline_; }
+  // Thresholds in force (for `heft design`-like reports and tests).
+  double cusum_h() const { return cusum_h_; }
+  double ewma_limit_l() const { return ewma_.limit_l(); }
+  const RunRuleSettings& run_rule_settings() const { return rules_.settings(); }
 
  private:
   enum class Phase { kSettling, kRunning };
+  struct Entry {         // one running pack in the recent-history ring
+    double z = 0.0;      // standardised residual
+    double white = 0.0;  // z − φ·z_prev (whitened, for the periodogram)
+    std::int64_t index = 0;
+    std::int64_t time_ms = 0;
+    int head = kNoHead;
+  };
 
   bool IsGross(double grams) const;
   void Start(const Pack& pack, std::vector<Finding>* out);
   void Learn(const Pack& pack, std::vector<Finding>* out);
+  void FinishSettling(const Pack& pack, std::size_t settle_at, std::vector<Finding>* out);
   void Run(const Pack& pack, std::vector<Finding>* out);
+  void RunMean(const Pack& pack, double z, std::vector<Finding>* out);
+  void RaiseMean(const Pack& pack, const char* detector, int side, double cusum_shift,
+                 std::optional<std::int64_t> cusum_onset, std::vector<Finding>* out);
+  void RunHeads(const Pack& pack, double z, std::vector<Finding>* out);
+  int HeadPatternPeriod() const;
+  void RunSubgroup(const Pack& pack, double z, std::vector<Finding>* out);
+  void RunSpread(const Pack& pack, double z, std::vector<Finding>* out);
+  void RunCycles(const Pack& pack, std::vector<Finding>* out);
+  void RunStuck(const Pack& pack, std::vector<Finding>* out);
+  void RefreshBaseline(const Pack& pack, bool clean);
+  void UpdateAllowances();
   void NoteOutlier(const Pack& pack, const char* detector, std::vector<Finding>* out);
   void MaybeCloseOutlierBurst(const Pack& pack, std::vector<Finding>* out);
   Finding Make(Transition transition, FindingKind kind, Severity severity, const Pack& at) const;
   void Emit(Finding finding, std::vector<Finding>* out);
+  void Clear(FindingKind kind, const Pack& at, const char* detector, std::vector<Finding>* out);
+  const Entry& Recent(std::size_t back) const;  // 0 = newest
+  double PacksPerHour() const;
 
   std::string line_;
   LineSettings settings_;
@@ -72,22 +121,65 @@ class LineMonitor {
   std::int64_t last_index_ = -1;
   std::int64_t last_time_ms_ = 0;
   bool open_[kFindingKindCount] = {};
+  std::int64_t raised_at_[kFindingKindCount] = {};
 
-  // Settling: packs since the start, for the MSER-5 cut.
+  // Settling: packs since the start.
   std::vector<double> learn_values_;
+  std::vector<int> learn_heads_;
   std::vector<std::int64_t> learn_indexes_;
   std::size_t learn_target_ = 0;
+  std::size_t learn_capacity_ = 0;
+  std::int64_t start_index_ = 0;
+  bool settling_alarmed_ = false;
+  int heads_ = 0;  // heads in use (settings, or learnt from the packs)
 
-  // Baseline learnt after settling.
-  double baseline_mean_ = 0.0;
-  double baseline_sigma_ = 0.0;
+  // Baseline and the allowances derived from it.
+  RobustBaseline baseline_;
+  double sigma_eff_ = 1.0;    // σ widened by its standard error
+  double inflation_ = 1.0;    // √((1+φ)/(1−φ))
+  double level_allow_ = 0.0;  // level standard error, in units of z/inflation
+  double subgroup_sd_ = 1.0;  // σ of a subgroup mean of z
+  std::int64_t block_count_ = 0;
+  bool block_clean_ = true;
 
-  TabularCusum cusum_;
-  double shift_ewma_ = 0.0;           // EWMA of z while a shift is open (for clearing)
-  std::int64_t shift_raised_index_ = 0;
+  // Mean detectors.
+  double cusum_k_ = 0.5;
+  double cusum_h_ = 5.0;
+  TabularCusum cusum_up_;    // fed z − allowance: its upper side is the one used
+  TabularCusum cusum_down_;  // fed z + allowance: its lower side is the one used
+  EwmaChart ewma_;
+  double mean_clear_ewma_ = 0.0;  // EWMA of z while a mean finding is open (for clearing)
+  double mean_open_size_ = 0.0;
+
+  // Head, subgroup, spread, cycle and stuck detectors.
+  double head_k_ = 1.0;
+  double head_h_ = 6.0;
+  HeadCusums head_cusums_;
+  std::vector<double> head_allow_;  // per-head offset standard errors, σ units
+  int subgroup_n_ = 5;
+  int subgroup_count_ = 0;
+  double subgroup_sum_ = 0.0;
+  RunRules rules_;
+  LogVarianceCusum spread_;
+  double spread_k_ = 0.5, spread_h_ = 5.0;
+  PeriodicityTest cycles_;
+  std::vector<double> cycle_buffer_;
+  double cycle_p_threshold_ = 1e-6;
+  std::int64_t since_cycle_test_ = 0;
+  StuckReading stuck_;
+  std::int64_t stuck_start_index_ = 0;
+  double stuck_chance_ = 1e-7;
+
+  // Recent running packs (ring; capacity = cycle window).
+  std::vector<Entry> ring_;
+  std::size_t ring_next_ = 0;
+  std::size_t ring_count_ = 0;
+  double last_z_ = 0.0;
+  std::vector<double> scratch_;  // classification window, sized once
 
   std::int64_t outlier_last_index_ = 0;
   std::int64_t outlier_count_ = 0;
+  int outlier_side_run_ = 0;  // consecutive beyond-limit packs on one side (signed)
 
   RollingMoments recent_;
 };

@@ -26,6 +26,25 @@ struct LineSettings {
   int baseline_packs = 300;           // packs collected after a start to learn the baseline
   std::int64_t silence_ms = 60'000;   // no pack for this long: line silent, restart settling
 
+  // Detection engine (0 for a count = derive it from the false-alarm budget).
+  double drift_lambda = 0.05;         // EWMA weight of the drift detector
+  double head_shift_sigma = 2.0;      // smallest single-head offset worth catching, sigma
+  double spread_ratio = 1.5;          // smallest sigma ratio (now/baseline) worth catching
+  double min_cycle_sigma = 0.5;       // smallest cycle amplitude worth reporting, sigma
+  int cycle_window_packs = 512;       // periodicity test window (rounded up to a power of 2)
+  int cycle_every_packs = 128;        // run the periodicity test every this many packs
+  bool run_rules = true;              // Western Electric / Nelson rules on subgroup means
+  int subgroup_packs = 0;             // run-rule subgroup; 0 = heads (one turn) or 5
+  int run_one_side_count = 0;         // long_run_one_side (Nelson 2)
+  int run_trend_count = 0;            // steady_trend (Nelson 3)
+  int run_sawtooth_count = 0;         // sawtooth (Nelson 4)
+  int run_hugging_count = 0;          // hugging_centre (Nelson 7)
+  int run_avoiding_count = 0;         // avoiding_centre (Nelson 8)
+  int stuck_packs = 8;                // identical readings in a row that mean a stuck sensor (floor)
+  int outlier_burst_packs = 5;        // outliers in one burst that make it an alarm
+  int settling_alarm_packs = 1500;    // settling longer than this (packs) raises an alarm
+  int baseline_block_packs = 500;     // the baseline takes in checked packs in blocks of this
+
   // Gross packs: outside [low, high] x nominal (or x the baseline level when no nominal).
   double gross_low_ratio = 0.5;
   double gross_high_ratio = 1.5;

@@ -1,0 +1,47 @@
+#include "core/detect/head_cusum.h"
+
+#include <algorithm>
+
+namespace heft {
+
+HeadCusums::HeadCusums(int heads, double k, double h)
+    : k_(k), h_(h), sides_(static_cast<std::size_t>(std::max(0, heads))) {}
+
+void HeadCusums::Reset() {
+  for (auto& s : sides_) s = Sums{};
+}
+
+std::optional<HeadSignal> HeadCusums::Update(int head, double z, std::int64_t index,
+                                             double allowance) {
+  if (head < 0 || head >= heads()) return std::nullopt;
+  Sums& s = sides_[static_cast<std::size_t>(head)];
+  const double k = k_ + std::max(0.0, allowance);
+  const double up = s.up + z - k;
+  if (up > 0.0) {
+    if (s.up_run == 0) s.up_onset = index;
+    ++s.up_run;
+    s.up = up;
+  } else {
+    s.up = 0.0;
+    s.up_run = 0;
+  }
+  const double down = s.down - z - k;
+  if (down > 0.0) {
+    if (s.down_run == 0) s.down_onset = index;
+    ++s.down_run;
+    s.down = down;
+  } else {
+    s.down = 0.0;
+    s.down_run = 0;
+  }
+  std::optional<HeadSignal> out;
+  if (s.up > h_) {
+    out = HeadSignal{head, k + s.up / std::max(1, s.up_run), s.up_onset};
+  } else if (s.down > h_) {
+    out = HeadSignal{head, -k - s.down / std::max(1, s.down_run), s.down_onset};
+  }
+  if (out) s = Sums{};
+  return out;
+}
+
+}  // namespace heft
