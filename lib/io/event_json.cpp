@@ -167,6 +167,8 @@ std::string FindingToJson(const Finding& finding, std::string_view message) {
   AppendOptDouble("size_sigma", finding.size_sigma, &out);
   AppendOptDouble("level_g", finding.level_g, &out);
   AppendOptDouble("period_packs", finding.period_packs, &out);
+  AppendOptDouble("period_s", finding.period_s, &out);
+  AppendOptDouble("slope_g_per_h", finding.slope_g_per_h, &out);
   if (finding.head) {
     AppendKey("head", &out);
     AppendInt(*finding.head, &out);

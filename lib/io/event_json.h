@@ -4,8 +4,8 @@
 //   {"event":"raised"|"cleared","kind":K,"line":L,"at":I,"onset":I|null,
 //    "end":I|null,"severity":S,"message":M, ...extra fields...}
 // Extra fields: at_time, onset_time (ISO-8601 UTC), size_g, size_sigma,
-// level_g, period_packs, head, detector — present only when known. Numbers are
-// printed with fixed precision (3 decimals for grams and sigmas).
+// level_g, period_packs, period_s, slope_g_per_h, head, detector — present only when known. Numbers
+// are printed with fixed precision (3 decimals for grams and sigmas).
 #pragma once
 
 #include <string>
