@@ -16,6 +16,8 @@ constexpr std::int64_t kMeanMinOpenPacks = 20;   // a shift/drift stays open at 
 constexpr double kMeanClearEwmaLambda = 0.1;     // EWMA used to see the level return
 constexpr double kShiftAlarmSigma = 1.5;         // changes this large are alarms, not warnings
 constexpr int kMaxInferredHeads = 64;
+constexpr int kSwingRaises = 3;                // alternating mean raises that make a swing
+constexpr std::int64_t kSwingSpanPacks = 600;  // ... within this many of the line's packs
 // Shares of the line's false-alarm budget, as multiples of its in-control ARL. The
 // CUSUM (1/2) and individuals limit (1/4) shares are set by DesignDetectors; the EWMA
 // gets 1/4 and the head CUSUMs, run rules, spread, periodogram and stuck test 1/16
@@ -93,7 +95,10 @@ Finding LineMonitor::Make(Transition transition, FindingKind kind, Severity seve
 void LineMonitor::Emit(Finding finding, std::vector<Finding>* out) {
   const int slot = Slot(finding.kind);
   open_[slot] = finding.transition == Transition::kRaised;
-  if (open_[slot]) raised_at_[slot] = finding.at;
+  if (open_[slot]) {
+    raised_at_[slot] = finding.at;
+    raised_at_pack_[slot] = packs_;
+  }
   if (finding.transition == Transition::kRaised && finding.kind != FindingKind::kSettling &&
       finding.kind != FindingKind::kSilence) {
     block_clean_ = false;  // something happened: this block does not teach the baseline
@@ -182,6 +187,7 @@ void LineMonitor::Start(const Pack& pack, std::vector<Finding>* out) {
   learn_target_ = static_cast<std::size_t>(std::max(30, settings_.baseline_packs));
   start_index_ = pack.index;
   settling_alarmed_ = false;
+  mean_raise_count_ = 0;
   recent_.Clear();
   stuck_.Reset();
   ring_count_ = 0;
@@ -386,7 +392,7 @@ void LineMonitor::RunMean(const Pack& pack, double z, std::vector<Finding>* out)
     const FindingKind kind =
         open_[Slot(FindingKind::kShift)] ? FindingKind::kShift : FindingKind::kDrift;
     mean_clear_ewma_ += kMeanClearEwmaLambda * (z - mean_clear_ewma_);
-    if (pack.index - raised_at_[Slot(kind)] >= kMeanMinOpenPacks &&
+    if (packs_ - raised_at_pack_[Slot(kind)] >= kMeanMinOpenPacks &&
         std::fabs(mean_clear_ewma_) < cusum_k_ * inflation_) {
       Clear(kind, pack, kind == FindingKind::kShift ? "cusum" : "ewma", out);
       cusum_up_.Reset(cusum_h_ / 2.0);
@@ -418,6 +424,20 @@ void LineMonitor::RunMean(const Pack& pack, double z, std::vector<Finding>* out)
 
 void LineMonitor::RaiseMean(const Pack& pack, const char* detector, int side, double cusum_shift,
                             std::optional<std::int64_t> cusum_onset, std::vector<Finding>* out) {
+  // While the line swings, its level changes are the swing: the open oscillation
+  // finding already speaks for them, so no string of shift alarms follows it.
+  if (open_[Slot(FindingKind::kOscillation)]) {
+    cusum_up_.Reset(0.0);
+    cusum_down_.Reset(0.0);
+    ewma_.Reset();
+    return;
+  }
+  if (NoteMeanRaise(pack, side, cusum_shift, out)) {
+    cusum_up_.Reset(0.0);
+    cusum_down_.Reset(0.0);
+    ewma_.Reset();
+    return;
+  }
   // The window for the shape fit: from a little before the estimated onset to now.
   std::size_t back = std::min<std::size_t>(
       ring_count_, 2 * static_cast<std::size_t>(3.0 / settings_.drift_lambda));
@@ -462,6 +482,34 @@ void LineMonitor::RaiseMean(const Pack& pack, const char* detector, int side, do
   cusum_up_.Reset(0.0);
   cusum_down_.Reset(0.0);
   ewma_.Reset();
+}
+
+bool LineMonitor::NoteMeanRaise(const Pack& pack, int side, double size_sigma,
+                                std::vector<Finding>* out) {
+  if (mean_raise_count_ == static_cast<int>(mean_raises_.size())) {
+    std::rotate(mean_raises_.begin(), mean_raises_.begin() + 1, mean_raises_.end());
+    --mean_raise_count_;
+  }
+  mean_raises_[static_cast<std::size_t>(mean_raise_count_++)] = {packs_, side};
+  if (mean_raise_count_ < kSwingRaises) return false;
+  const MeanRaise* last = &mean_raises_[static_cast<std::size_t>(mean_raise_count_ - kSwingRaises)];
+  for (int i = 1; i < kSwingRaises; ++i) {
+    if (last[i].side == last[i - 1].side) return false;  // not alternating
+  }
+  const std::int64_t span = last[kSwingRaises - 1].pack - last[0].pack;
+  if (span > kSwingSpanPacks) return false;
+  // Each reversal is half a cycle.
+  const double period = 2.0 * static_cast<double>(span) / (kSwingRaises - 1);
+  Finding raised = Make(Transition::kRaised, FindingKind::kOscillation, Severity::kWarning, pack);
+  raised.onset = raised_at_[Slot(FindingKind::kShift)];
+  raised.period_packs = period;
+  raised.period_s = period * 3600.0 / PacksPerHour();
+  raised.size_sigma = std::fabs(size_sigma);
+  raised.size_g = std::fabs(size_sigma) * baseline_.sigma();
+  raised.detector = "level_reversals";
+  Emit(std::move(raised), out);
+  mean_raise_count_ = 0;
+  return true;
 }
 
 void LineMonitor::RunHeads(const Pack& pack, double z, std::vector<Finding>* out) {
@@ -564,7 +612,7 @@ void LineMonitor::RunSpread(const Pack& pack, double z, std::vector<Finding>* ou
   const bool signal = spread_.Add(z);
   const int slot = Slot(FindingKind::kSpread);
   if (open_[slot]) {
-    if (pack.index - raised_at_[slot] >= 20 * spread_.subgroup() &&
+    if (packs_ - raised_at_pack_[slot] >= 20 * spread_.subgroup() &&
         spread_.smoothed() < spread_k_) {
       Clear(FindingKind::kSpread, pack, "log_variance_cusum", out);
       spread_.Reset();
@@ -601,7 +649,7 @@ void LineMonitor::RunCycles(const Pack& pack, std::vector<Finding>* out) {
   const double gain = std::sqrt(std::max(1e-6, 1.0 - 2.0 * phi * std::cos(w) + phi * phi));
   const double amplitude = r.amplitude / gain;
   if (open_[slot]) {
-    if (pack.index - raised_at_[slot] >= static_cast<std::int64_t>(n) && r.p_value > 1e-2) {
+    if (packs_ - raised_at_pack_[slot] >= static_cast<std::int64_t>(n) && r.p_value > 1e-2) {
       bool heads_quiet = true;
       for (int h = 0; h < head_cusums_.heads(); ++h) {
         if (head_cusums_.upper(h) > head_h_ / 2.0 || head_cusums_.lower(h) > head_h_ / 2.0) {
@@ -698,6 +746,7 @@ void LineMonitor::RefreshBaseline(const Pack& pack, bool clean) {
 
 void LineMonitor::NoteOutlier(const Pack& pack, const char* detector, std::vector<Finding>* out) {
   outlier_last_index_ = pack.index;
+  outlier_last_pack_ = packs_;
   block_clean_ = false;
   if (open_[Slot(FindingKind::kOutlier)]) {
     if (++outlier_count_ == std::max(2, settings_.outlier_burst_packs)) {
@@ -725,7 +774,7 @@ void LineMonitor::NoteOutlier(const Pack& pack, const char* detector, std::vecto
 
 void LineMonitor::MaybeCloseOutlierBurst(const Pack& pack, std::vector<Finding>* out) {
   if (!open_[Slot(FindingKind::kOutlier)]) return;
-  if (pack.index - outlier_last_index_ < kOutlierQuietPacks) return;
+  if (packs_ - outlier_last_pack_ < kOutlierQuietPacks) return;
   Finding cleared = Make(Transition::kCleared, FindingKind::kOutlier, Severity::kInfo, pack);
   cleared.end = outlier_last_index_;
   cleared.size_g = static_cast<double>(outlier_count_);  // packs in the burst

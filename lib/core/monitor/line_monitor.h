@@ -94,6 +94,9 @@ class LineMonitor {
   void RunMean(const Pack& pack, double z, std::vector<Finding>* out);
   void RaiseMean(const Pack& pack, const char* detector, int side, double cusum_shift,
                  std::optional<std::int64_t> cusum_onset, std::vector<Finding>* out);
+  // Records a mean raise; true (and an oscillation raised) when the last few
+  // alternate in side within a short span.
+  bool NoteMeanRaise(const Pack& pack, int side, double size_sigma, std::vector<Finding>* out);
   void RunHeads(const Pack& pack, double z, std::vector<Finding>* out);
   int HeadPatternPeriod() const;
   void RunSubgroup(const Pack& pack, double z, std::vector<Finding>* out);
@@ -121,7 +124,8 @@ class LineMonitor {
   std::int64_t last_index_ = -1;
   std::int64_t last_time_ms_ = 0;
   bool open_[kFindingKindCount] = {};
-  std::int64_t raised_at_[kFindingKindCount] = {};
+  std::int64_t raised_at_[kFindingKindCount] = {};       // record index of the last raise
+  std::int64_t raised_at_pack_[kFindingKindCount] = {};  // this line's pack count then
 
   // Settling: packs since the start.
   std::vector<double> learn_values_;
@@ -150,6 +154,14 @@ class LineMonitor {
   EwmaChart ewma_;
   double mean_clear_ewma_ = 0.0;  // EWMA of z while a mean finding is open (for clearing)
   double mean_open_size_ = 0.0;
+  // Recent mean raises (this line's pack count and side), oldest first: a level
+  // that keeps jumping up and down is a swing, not a string of shifts.
+  struct MeanRaise {
+    std::int64_t pack = 0;
+    int side = 0;
+  };
+  std::array<MeanRaise, 4> mean_raises_{};
+  int mean_raise_count_ = 0;
 
   // Head, subgroup, spread, cycle and stuck detectors.
   double head_k_ = 1.0;
@@ -178,6 +190,7 @@ class LineMonitor {
   std::vector<double> scratch_;  // classification window, sized once
 
   std::int64_t outlier_last_index_ = 0;
+  std::int64_t outlier_last_pack_ = 0;  // this line's pack count at the last wild pack
   std::int64_t outlier_count_ = 0;
   int outlier_side_run_ = 0;  // consecutive beyond-limit packs on one side (signed)
 
