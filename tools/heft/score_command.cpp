@@ -43,6 +43,7 @@ struct Options {
 struct Outcome {
   bool detected = false;
   bool right_kind = false;
+  bool right_kind_later = false;  // the mean finding's kind once re-judged (within 400 packs)
   double delay = 0.0;
   bool period_ok = false;
   bool head_ok = false;
@@ -149,12 +150,20 @@ Outcome RunOne(const ScenarioSpec& spec, std::int64_t packs, std::int64_t change
         }
         continue;
       }
-      if (o.detected || change >= packs) continue;
+      if (change >= packs) continue;
       const bool mean_pair = (expect == FindingKind::kShift || expect == FindingKind::kDrift) &&
                              (f.kind == FindingKind::kShift || f.kind == FindingKind::kDrift);
+      if (o.detected) {
+        // A shift re-judged as a drift (or the reverse) within 400 packs of detection.
+        if (mean_pair && f.at - change - static_cast<std::int64_t>(o.delay) <= 400) {
+          o.right_kind_later = f.kind == expect;
+        }
+        continue;
+      }
       if (f.kind == expect || mean_pair) {
         o.detected = true;
         o.right_kind = f.kind == expect;
+        o.right_kind_later = o.right_kind;
         o.delay = static_cast<double>(f.at - change);
         if (true_period > 0.0 && f.period_packs) {
           o.period_ok = std::fabs(*f.period_packs - true_period) <= 0.1 * true_period;
@@ -187,19 +196,20 @@ std::string Fmt(double v, int precision = 1) {
 
 void Print(const std::vector<Tally>& tallies, std::ostream& out) {
   out << std::left << std::setw(24) << "pattern" << std::right << std::setw(8) << "runs"
-      << std::setw(9) << "detect%" << std::setw(9) << "kind%" << std::setw(9) << "med.dly"
-      << std::setw(9) << "worst" << std::setw(11) << "FA/100k" << std::setw(10) << "period%"
-      << std::setw(8) << "head%" << std::setw(11) << "settle.err" << std::setw(9) << "settle%"
-      << std::setw(9) << "release" << std::setw(9) << "held%"
+      << std::setw(9) << "detect%" << std::setw(9) << "kind%" << std::setw(9) << "kind+%"
+      << std::setw(9) << "med.dly" << std::setw(9) << "worst" << std::setw(11) << "FA/100k"
+      << std::setw(10) << "period%" << std::setw(8) << "head%" << std::setw(11) << "settle.err"
+      << std::setw(9) << "settle%" << std::setw(9) << "release" << std::setw(9) << "held%"
       << "\n";
   for (const Tally& t : tallies) {
     std::vector<double> delays, errors, releases;
-    int detected = 0, kind = 0, period = 0, head = 0, settle = 0, held = 0;
+    int detected = 0, kind = 0, kind_later = 0, period = 0, head = 0, settle = 0, held = 0;
     for (const Outcome& o : t.runs) {
       if (o.detected) {
         ++detected;
         delays.push_back(o.delay);
         kind += o.right_kind;
+        kind_later += o.right_kind_later;
         period += o.period_ok;
         head += o.head_ok;
       }
@@ -216,6 +226,7 @@ void Print(const std::vector<Tally>& tallies, std::ostream& out) {
     out << std::left << std::setw(24) << t.name << std::right << std::setw(8) << t.runs.size()
         << std::setw(9) << (change ? Fmt(100.0 * detected / n) : "-") << std::setw(9)
         << (change && detected ? Fmt(100.0 * kind / detected) : "-") << std::setw(9)
+        << (change && detected ? Fmt(100.0 * kind_later / detected) : "-") << std::setw(9)
         << Fmt(Median(delays), 0) << std::setw(9)
         << (delays.empty() ? "-" : Fmt(*std::max_element(delays.begin(), delays.end()), 0))
         << std::setw(11) << Fmt(fa, 2) << std::setw(10)
@@ -226,6 +237,8 @@ void Print(const std::vector<Tally>& tallies, std::ostream& out) {
         << (t.startup ? Fmt(Median(releases), 0) : "-") << std::setw(9)
         << (t.startup ? Fmt(100.0 * held / n) : "-") << "\n";
   }
+  out << "kind% = first finding of the right kind; kind+% = after re-judging an open\n"
+         "shift or drift with the packs that followed (within 400 packs).\n";
   out << "FA/100k counts every raised finding other than settling/silence (outliers only on\n"
          "packs that were not gross mis-fills) on in-control packs after settling.\n"
          "Delays in packs from the true start; settle.err = median |estimated − true| settle\n"

@@ -28,6 +28,12 @@ constexpr double kMinorShare = 16.0;
 constexpr std::size_t kShapePrePacks = 30;  // packs before the onset in the shape fit
 constexpr double kRampMargin = 0.0;         // SSE (in σ²) a ramp must beat a step by
 constexpr std::size_t kMinRampPacks = 25;   // a "ramp" shorter than this is a step
+// Re-judging an open shift: every 25 of the line's packs for 400 packs, a ramp must
+// beat a step by 8 σ² of squared error (about p < 0.005 for one extra degree of freedom,
+// allowing for mild autocorrelation) to turn the shift into a drift.
+constexpr std::int64_t kRefitEveryPacks = 25;
+constexpr std::int64_t kRefitHorizonPacks = 400;
+constexpr double kRefitMargin = 8.0;
 
 int Slot(FindingKind kind) { return static_cast<int>(kind); }
 
@@ -392,6 +398,12 @@ void LineMonitor::RunMean(const Pack& pack, double z, std::vector<Finding>* out)
     const FindingKind kind =
         open_[Slot(FindingKind::kShift)] ? FindingKind::kShift : FindingKind::kDrift;
     mean_clear_ewma_ += kMeanClearEwmaLambda * (z - mean_clear_ewma_);
+    const std::int64_t open_for = packs_ - raised_at_pack_[Slot(kind)];
+    if (kind == FindingKind::kShift && !mean_open_refit_done_ && open_for > 0 &&
+        open_for <= kRefitHorizonPacks && open_for % kRefitEveryPacks == 0 &&
+        MaybeReclassifyAsDrift(pack, out)) {
+      return;
+    }
     if (packs_ - raised_at_pack_[Slot(kind)] >= kMeanMinOpenPacks &&
         std::fabs(mean_clear_ewma_) < cusum_k_ * inflation_) {
       Clear(kind, pack, kind == FindingKind::kShift ? "cusum" : "ewma", out);
@@ -477,11 +489,42 @@ void LineMonitor::RaiseMean(const Pack& pack, const char* detector, int side, do
   raised.size_g = size_sigma * baseline_.sigma();
   raised.level_g = baseline_.level() + size_sigma * baseline_.sigma();
   raised.detector = std::string(detector) + (ramp ? "+ramp_fit" : "+step_fit");
+  mean_open_side_ = side;
+  mean_open_onset_ = raised.onset.value_or(pack.index);
+  mean_open_refit_done_ = ramp;
   Emit(std::move(raised), out);
   mean_clear_ewma_ = size_sigma;
   cusum_up_.Reset(0.0);
   cusum_down_.Reset(0.0);
   ewma_.Reset();
+}
+
+bool LineMonitor::MaybeReclassifyAsDrift(const Pack& pack, std::vector<Finding>* out) {
+  std::size_t since = 0;
+  while (since < ring_count_ && Recent(since).index >= mean_open_onset_) ++since;
+  const std::size_t back = std::min(ring_count_, since + kShapePrePacks);
+  if (back < 2 * kMinRampPacks) return false;
+  scratch_.clear();
+  for (std::size_t i = back; i-- > 0;) scratch_.push_back(Recent(i).z);
+  const ChangeShape shape = FitChangeShape(scratch_, kRefitMargin, kMinRampPacks);
+  if (!shape.ramp || shape.slope * mean_open_side_ <= 0.0) return false;
+  mean_open_refit_done_ = true;
+  Clear(FindingKind::kShift, pack, "refit_as_ramp", out);
+  const double z_to_sigma = sigma_eff_ / baseline_.sigma();
+  const double size_sigma = shape.slope * static_cast<double>(back - shape.ramp_at) * z_to_sigma;
+  Finding raised =
+      Make(Transition::kRaised, FindingKind::kDrift,
+           std::fabs(size_sigma) >= kShiftAlarmSigma ? Severity::kAlarm : Severity::kWarning, pack);
+  raised.onset = Recent(back - 1 - shape.ramp_at).index;
+  raised.onset_time_ms = Recent(back - 1 - shape.ramp_at).time_ms;
+  raised.slope_g_per_h = shape.slope * sigma_eff_ * PacksPerHour();
+  raised.size_sigma = size_sigma;
+  raised.size_g = size_sigma * baseline_.sigma();
+  raised.level_g = baseline_.level() + size_sigma * baseline_.sigma();
+  raised.detector = "ramp_refit";
+  mean_open_onset_ = *raised.onset;
+  Emit(std::move(raised), out);
+  return true;
 }
 
 bool LineMonitor::NoteMeanRaise(const Pack& pack, int side, double size_sigma,

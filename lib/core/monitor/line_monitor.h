@@ -96,6 +96,9 @@ class LineMonitor {
                  std::optional<std::int64_t> cusum_onset, std::vector<Finding>* out);
   // Records a mean raise; true (and an oscillation raised) when the last few
   // alternate in side within a short span.
+  // While a shift is open, more packs tell a step from a ramp better than the few
+  // at the signal did: re-judge it and turn it into a drift when a ramp fits clearly better.
+  bool MaybeReclassifyAsDrift(const Pack& pack, std::vector<Finding>* out);
   bool NoteMeanRaise(const Pack& pack, int side, double size_sigma, std::vector<Finding>* out);
   void RunHeads(const Pack& pack, double z, std::vector<Finding>* out);
   int HeadPatternPeriod() const;
@@ -161,6 +164,9 @@ class LineMonitor {
     int side = 0;
   };
   std::array<MeanRaise, 4> mean_raises_{};
+  int mean_open_side_ = 0;             // +1 / −1 while a shift or drift is open
+  std::int64_t mean_open_onset_ = 0;   // its onset (record index)
+  bool mean_open_refit_done_ = false;  // a shift is re-judged as a ramp at most once
   int mean_raise_count_ = 0;
 
   // Head, subgroup, spread, cycle and stuck detectors.
