@@ -47,15 +47,14 @@ std::vector<Finding> Only(const std::vector<Finding>& all, FindingKind kind) {
 
 }  // namespace
 
-TEST_CASE("monitor settles after a start-up transient, then catches a 2-sigma step",
-          "[monitor]") {
+TEST_CASE("monitor settles after a start-up transient, then catches a 2-sigma step", "[monitor]") {
   LineMonitor monitor("oats-1", OatsLine());
   RandomSource rng(20260302);
   std::vector<Finding> findings;
   for (std::int64_t i = 0; i < 3000; ++i) {
     double x = kLevel + kSigma * rng.Normal();
     x += 8.0 * kSigma * std::exp(-static_cast<double>(i) / 20.0);  // first-order start-up
-    if (i >= 1500) x += 2.0 * kSigma;                                // the step
+    if (i >= 1500) x += 2.0 * kSigma;                              // the step
     monitor.Push(MakePack(i, x, kStartMs + i * kStepMs), &findings);
   }
   const auto settling = Only(findings, FindingKind::kSettling);
@@ -130,7 +129,7 @@ TEST_CASE("gross packs are reported as one outlier burst and kept out of the bas
   for (std::int64_t i = 0; i < 600; ++i) {
     double x = kLevel + kSigma * rng.Normal();
     if (i == 100 || i == 103 || i == 400) x = 0.0;  // empty packs
-    if (i == 401) x = 1006.0;                        // a double pack
+    if (i == 401) x = 1006.0;                       // a double pack
     monitor.Push(MakePack(i, x, kStartMs + i * kStepMs), &findings);
   }
   const auto outliers = Only(findings, FindingKind::kOutlier);
@@ -205,11 +204,12 @@ TEST_CASE("stream ingest numbers data records the replay way", "[monitor][ingest
   const std::string feed =
       "time,line,head,weight\r\n"
       "2026-03-02T06:00:00.000Z,oats-1,0,503.1\r\n"
-      "\r\n"                                            // blank: no index
-      "2026-03-02T06:00:00.500Z,oats-1,1,abc\r\n"       // #1 malformed
-      "2026-03-02T06:00:01.000Z,oats-1,2,502.7\r\n"     // #2
-      + std::string(100, 'x') + "\r\n"                  // #3 over-long
-      "2026-03-02T06:00:01.500Z,oats-1,3,504.0";        // #4, unterminated
+      "\r\n"                                         // blank: no index
+      "2026-03-02T06:00:00.500Z,oats-1,1,abc\r\n"    // #1 malformed
+      "2026-03-02T06:00:01.000Z,oats-1,2,502.7\r\n"  // #2
+      + std::string(100, 'x') +
+      "\r\n"                                      // #3 over-long
+      "2026-03-02T06:00:01.500Z,oats-1,3,504.0";  // #4, unterminated
   // Byte by byte, to exercise the framer's carry-over.
   for (char c : feed) ingest.Feed(std::string_view(&c, 1), 0, &findings);
   ingest.Finish(0, &findings);
@@ -222,4 +222,65 @@ TEST_CASE("stream ingest numbers data records the replay way", "[monitor][ingest
   CHECK(ingest.counters().records == 5);
   CHECK(ingest.counters().accepted == 3);
   CHECK(ingest.counters().malformed == 2);
+}
+
+TEST_CASE("a hunting filler gives one oscillation, not a string of shifts", "[monitor]") {
+  LineMonitor monitor("honey-2", OatsLine());
+  RandomSource rng(40);
+  std::vector<Finding> findings;
+  for (std::int64_t i = 0; i < 4000; ++i) {
+    double x = kLevel + kSigma * rng.Normal();
+    if (i >= 1000) x += 2.5 * kSigma * std::sin(2.0 * 3.141592653589793 * (i - 1000) / 60.0);
+    monitor.Push(MakePack(i, x, kStartMs + i * kStepMs), &findings);
+  }
+  const auto swings = Only(findings, FindingKind::kOscillation);
+  REQUIRE_FALSE(swings.empty());
+  CHECK(swings[0].transition == Transition::kRaised);
+  REQUIRE(swings[0].period_packs.has_value());
+  CHECK(*swings[0].period_packs == Approx(60.0).epsilon(0.35));
+  std::int64_t shifts_after = 0;
+  for (const auto& f : Only(findings, FindingKind::kShift)) {
+    if (f.transition == Transition::kRaised && f.at > swings[0].at) ++shifts_after;
+  }
+  CHECK(shifts_after == 0);
+  CHECK(Only(findings, FindingKind::kShift).size() <= 4);  // at most two raise/clear pairs
+}
+
+TEST_CASE("a ramp ends up reported as a drift", "[monitor]") {
+  LineMonitor monitor("oats-1", OatsLine());
+  RandomSource rng(200);
+  std::vector<Finding> findings;
+  for (std::int64_t i = 0; i < 2000; ++i) {
+    double x = kLevel + kSigma * rng.Normal();
+    if (i >= 1000) x -= kSigma * static_cast<double>(i - 1000) / 200.0;  // 1 sigma per 200 packs
+    monitor.Push(MakePack(i, x, kStartMs + i * kStepMs), &findings);
+  }
+  const auto drifts = Only(findings, FindingKind::kDrift);
+  REQUIRE_FALSE(drifts.empty());
+  CHECK(drifts[0].transition == Transition::kRaised);
+  CHECK(drifts[0].at < 1600);
+  REQUIRE(drifts[0].slope_g_per_h.has_value());
+  // True slope: 1.6 g per 200 packs at 7200 packs per hour = −57.6 g/h.
+  CHECK(*drifts[0].slope_g_per_h < -20.0);
+  CHECK(*drifts[0].slope_g_per_h > -120.0);
+}
+
+TEST_CASE("a whole-line step blames no single head", "[monitor]") {
+  LineSettings settings = OatsLine();
+  settings.heads = 12;
+  LineMonitor monitor("oats-1", settings);
+  RandomSource rng(12);
+  std::vector<Finding> findings;
+  for (std::int64_t i = 0; i < 4000; ++i) {
+    double x = kLevel + kSigma * rng.Normal();
+    if (i >= 1500) x -= 1.5 * kSigma;
+    Pack p = MakePack(i, x, kStartMs + i * kStepMs);
+    p.head = static_cast<int>(i % 12);
+    monitor.Push(p, &findings);
+  }
+  CHECK_FALSE(Only(findings, FindingKind::kShift).empty());
+  for (const auto& f : Only(findings, FindingKind::kOscillation)) {
+    INFO("oscillation at " << f.at << " by " << f.detector);
+    CHECK_FALSE(f.head.has_value());
+  }
 }

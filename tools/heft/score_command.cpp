@@ -157,6 +157,10 @@ Outcome RunOne(const ScenarioSpec& spec, std::int64_t packs, std::int64_t change
         // A shift re-judged as a drift (or the reverse) within 400 packs of detection.
         if (mean_pair && f.at - change - static_cast<std::int64_t>(o.delay) <= 400) {
           o.right_kind_later = f.kind == expect;
+          if (verbose) {
+            o.first += std::string(", then ") + std::string(KindName(f.kind)) + " " + f.detector +
+                       " at +" + std::to_string(f.at - change);
+          }
         }
         continue;
       }

@@ -14,10 +14,15 @@ constexpr std::size_t kRecentWindow = 60;        // packs in the snapshot's roll
 constexpr std::int64_t kOutlierQuietPacks = 50;  // clean packs that close an outlier burst
 constexpr std::int64_t kMeanMinOpenPacks = 20;   // a shift/drift stays open at least this long
 constexpr double kMeanClearEwmaLambda = 0.1;     // EWMA used to see the level return
-constexpr double kShiftAlarmSigma = 1.5;         // changes this large are alarms, not warnings
+// Hysteresis: a mean finding clears only when the level is back within half the
+// CUSUM reference, so a small lasting change is not cleared and raised again.
+constexpr double kMeanClearFraction = 0.5;
+constexpr double kShiftAlarmSigma = 1.5;  // changes this large are alarms, not warnings
 constexpr int kMaxInferredHeads = 64;
-constexpr int kSwingRaises = 3;                // alternating mean raises that make a swing
-constexpr std::int64_t kSwingSpanPacks = 600;  // ... within this many of the line's packs
+constexpr int kSwingRaises = 3;                 // alternating mean raises that make a swing
+constexpr std::int64_t kSwingSpanPacks = 600;   // ... within this many of the line's packs
+constexpr std::int64_t kCreepSpanPacks = 1500;  // same-side mean raises within this: a drift
+constexpr double kCreepGrowthSigma = 0.2;  // ... if the level kept moving away (about 1.5 s.e.)
 // Shares of the line's false-alarm budget, as multiples of its in-control ARL. The
 // CUSUM (1/2) and individuals limit (1/4) shares are set by DesignDetectors; the EWMA
 // gets 1/4 and the head CUSUMs, run rules, spread, periodogram and stuck test 1/16
@@ -33,7 +38,7 @@ constexpr std::size_t kMinRampPacks = 25;   // a "ramp" shorter than this is a s
 // allowing for mild autocorrelation) to turn the shift into a drift.
 constexpr std::int64_t kRefitEveryPacks = 25;
 constexpr std::int64_t kRefitHorizonPacks = 400;
-constexpr double kRefitMargin = 8.0;
+constexpr double kRefitMargin = 15.0;
 
 int Slot(FindingKind kind) { return static_cast<int>(kind); }
 
@@ -405,7 +410,7 @@ void LineMonitor::RunMean(const Pack& pack, double z, std::vector<Finding>* out)
       return;
     }
     if (packs_ - raised_at_pack_[Slot(kind)] >= kMeanMinOpenPacks &&
-        std::fabs(mean_clear_ewma_) < cusum_k_ * inflation_) {
+        std::fabs(mean_clear_ewma_) < kMeanClearFraction * cusum_k_ * inflation_) {
       Clear(kind, pack, kind == FindingKind::kShift ? "cusum" : "ewma", out);
       cusum_up_.Reset(cusum_h_ / 2.0);
       cusum_down_.Reset(cusum_h_ / 2.0);
@@ -533,14 +538,39 @@ bool LineMonitor::NoteMeanRaise(const Pack& pack, int side, double size_sigma,
     std::rotate(mean_raises_.begin(), mean_raises_.begin() + 1, mean_raises_.end());
     --mean_raise_count_;
   }
-  mean_raises_[static_cast<std::size_t>(mean_raise_count_++)] = {packs_, side};
+  const double level = (recent_.Mean() - baseline_.level()) / baseline_.sigma();
+  mean_raises_[static_cast<std::size_t>(mean_raise_count_++)] = {packs_, side, pack.index, level};
   if (mean_raise_count_ < kSwingRaises) return false;
   const MeanRaise* last = &mean_raises_[static_cast<std::size_t>(mean_raise_count_ - kSwingRaises)];
+  bool alternating = true, same_side = true;
   for (int i = 1; i < kSwingRaises; ++i) {
-    if (last[i].side == last[i - 1].side) return false;  // not alternating
+    alternating &= last[i].side != last[i - 1].side;
+    same_side &= last[i].side == last[i - 1].side;
   }
   const std::int64_t span = last[kSwingRaises - 1].pack - last[0].pack;
-  if (span > kSwingSpanPacks) return false;
+  const double growth = side * (last[kSwingRaises - 1].level - last[0].level);
+  if (same_side && span <= kCreepSpanPacks && growth > kCreepGrowthSigma) {
+    // The level keeps leaving in the same direction, further each time, and the
+    // shift keeps closing because each step is small: that is a slow drift.
+    Finding raised = Make(
+        Transition::kRaised, FindingKind::kDrift,
+        std::fabs(size_sigma) >= kShiftAlarmSigma ? Severity::kAlarm : Severity::kWarning, pack);
+    raised.onset = last[0].index;
+    raised.size_sigma = size_sigma;
+    raised.size_g = size_sigma * baseline_.sigma();
+    raised.level_g = baseline_.level() + *raised.size_g;
+    raised.slope_g_per_h =
+        *raised.size_g / std::max<double>(1.0, static_cast<double>(span)) * PacksPerHour();
+    raised.detector = "repeated_shifts";
+    mean_open_side_ = side;
+    mean_open_onset_ = last[0].index;
+    mean_open_refit_done_ = true;
+    mean_clear_ewma_ = size_sigma;
+    Emit(std::move(raised), out);
+    mean_raise_count_ = 0;
+    return true;
+  }
+  if (!alternating || span > kSwingSpanPacks) return false;
   // Each reversal is half a cycle.
   const double period = 2.0 * static_cast<double>(span) / (kSwingRaises - 1);
   Finding raised = Make(Transition::kRaised, FindingKind::kOscillation, Severity::kWarning, pack);
@@ -558,7 +588,16 @@ bool LineMonitor::NoteMeanRaise(const Pack& pack, int side, double size_sigma,
 void LineMonitor::RunHeads(const Pack& pack, double z, std::vector<Finding>* out) {
   if (head_cusums_.heads() < 2 || pack.head < 0 || pack.head >= head_cusums_.heads()) return;
   const double allowance = head_allow_[static_cast<std::size_t>(pack.head)];
-  const std::optional<HeadSignal> s = head_cusums_.Update(pack.head, z, pack.index, allowance);
+  // Judge the head against the other heads of the last turn, not against the
+  // baseline: when the whole line drifts or steps, no single head is at fault.
+  const auto others = static_cast<std::size_t>(head_cusums_.heads() - 1);
+  if (ring_count_ <= others) return;
+  double others_sum = 0.0;
+  for (std::size_t i = 1; i <= others; ++i) others_sum += Recent(i).z;
+  const double n_others = static_cast<double>(others);
+  const double relative = (z - others_sum / n_others) / std::sqrt(1.0 + 1.0 / n_others);
+  const std::optional<HeadSignal> s =
+      head_cusums_.Update(pack.head, relative, pack.index, allowance);
   if (!s || open_[Slot(FindingKind::kOscillation)]) return;
   Finding raised = Make(
       Transition::kRaised, FindingKind::kOscillation,

@@ -162,6 +162,8 @@ class LineMonitor {
   struct MeanRaise {
     std::int64_t pack = 0;
     int side = 0;
+    std::int64_t index = 0;  // record index of the raise
+    double level = 0.0;      // recent mean − baseline level, σ, at the raise
   };
   std::array<MeanRaise, 4> mean_raises_{};
   int mean_open_side_ = 0;             // +1 / −1 while a shift or drift is open
