@@ -6,8 +6,14 @@
 
 #include <cstdint>
 #include <map>
+#include <memory>
 #include <optional>
 #include <string>
+
+#include "core/comply/compliance_alert.h"
+#include "core/comply/lot_clock.h"
+#include "core/comply/rule_table.h"
+#include "core/comply/safe_target.h"
 
 namespace heft {
 
@@ -48,12 +54,27 @@ struct LineSettings {
   // Gross packs: outside [low, high] x nominal (or x the baseline level when no nominal).
   double gross_low_ratio = 0.5;
   double gross_high_ratio = 1.5;
+
+  // Net-content compliance (lines with a nominal_g only; see line_compliance.h).
+  // `rules` names a rule table file; the config loader resolves it to a path
+  // and loads it into PlantSettings::rule_tables ("none" = no compliance accounting).
+  std::string rules = "eu-average-quantity.yaml";
+  bool rules_allow_unconfirmed = false;  // use table rows marked unconfirmed (from memory)
+  comply::LotPolicy lots;                // default: one lot per clock hour (UTC)
+  double cost_per_kg = 0.0;              // product cost for giveaway money; 0 = none
+  bool rejects_in_lot = false;           // rejected packs return into the lot
+  comply::ComplianceAlertSettings compliance;
+  int compliance_hold_off_packs = 50;    // a lower level must hold this long before it clears
+  comply::SafeTargetSettings safe_target;
 };
 
 struct PlantSettings {
   LineSettings defaults;                                  // for lines the config does not name
   std::map<std::string, LineSettings, std::less<>> lines;  // by line id
   std::size_t max_lines = 1000;                           // refuse new line ids beyond this
+  // Loaded rule tables by resolved path (LineSettings::rules after loading).
+  // Filled by the io layer; the core never reads files.
+  std::map<std::string, std::shared_ptr<const comply::RuleTable>, std::less<>> rule_tables;
 };
 
 }  // namespace heft

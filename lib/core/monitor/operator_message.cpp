@@ -108,9 +108,30 @@ std::string OperatorMessage(const Finding& f, const LineSettings& line) {
       return where + (raised ? "the same reading repeats" + Since(f) +
                                    ". Check first: the checkweigher's load cell and its link."
                              : "readings vary again.");
-    case FindingKind::kCompliance:
-      return where + (raised ? "net-content risk" + Since(f) + "." + Effect(f, line)
-                             : "net-content risk has eased.");
+    case FindingKind::kCompliance: {
+      if (!raised) return where + "net-content risk has eased.";
+      // The detector names the reason (compliance_alert.h).
+      std::string why;
+      if (f.detector == "mean-below-nominal") {
+        why = "the lot mean is likely to end BELOW the nominal";
+      } else if (f.detector == "mean-near-nominal") {
+        why = "the lot mean may end below the nominal";
+      } else if (f.detector == "t1-share-over-limit") {
+        why = "packs short by more than the TNE (T1) are likely to exceed their allowed share";
+      } else if (f.detector == "t1-share-near-limit") {
+        why = "packs short by more than the TNE (T1) near their allowed share";
+      } else if (f.detector == "t2-seen") {
+        why = "a pack short by more than twice the TNE (T2)";
+      } else {
+        why = "net-content risk";
+      }
+      return where + (f.severity == Severity::kAlarm ? "COMPLIANCE ALARM: " : "compliance: ") +
+             why + (f.onset ? " (lot from pack #" + std::to_string(*f.onset) + ")" : "") + "." +
+             (f.level_g ? " Lot mean " + Grams(*f.level_g) : std::string()) +
+             (line.nominal_g ? " against nominal " + Grams(*line.nominal_g) + "." : ".") +
+             " Check first: the fill target and the filler's heads. (The packer's own control, "
+             "not a legal check.)";
+    }
   }
   return where + std::string(KindName(f.kind));
 }

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 
+#include "core/monitor/line_compliance.h"
 #include "core/monitor/line_monitor.h"
 
 namespace heft {
@@ -26,7 +27,17 @@ Plant::Entry* Plant::FindOrCreate(std::string_view line) {
     return &monitors_[it->second];
   }
   if (monitors_.size() >= settings_.max_lines) return nullptr;
-  monitors_.push_back({std::make_unique<LineMonitor>(std::string(line), SettingsFor(line)), 0});
+  const LineSettings& line_settings = SettingsFor(line);
+  monitors_.push_back(
+      {std::make_unique<LineMonitor>(std::string(line), line_settings), nullptr, 0});
+  if (line_settings.nominal_g && line_settings.rules != "none") {
+    const auto table = settings_.rule_tables.find(line_settings.rules);
+    if (table != settings_.rule_tables.end()) {
+      const Status status = LineCompliance::Create(std::string(line), line_settings, table->second,
+                                                   &monitors_.back().compliance);
+      if (!status.ok()) compliance_problems_.push_back(status.message());
+    }
+  }
   last_used_ = monitors_.size() - 1;
   index_.insert(it, {std::string(line), last_used_});
   return &monitors_.back();
@@ -60,6 +71,7 @@ Plant::Accepted Plant::Accept(const RecordView& record, std::int64_t index,
     }
   }
   monitor.Push(pack, out);
+  if (entry->compliance) entry->compliance->Push(pack, out, &closed_lots_);
   earliest_silence_deadline_ms_ = std::min(
       earliest_silence_deadline_ms_, monitor.last_time_ms() + monitor.settings().silence_ms);
   entry->last_arrival_ms = arrival_ms;
@@ -70,6 +82,29 @@ void Plant::AdvanceTo(std::int64_t now_ms, std::int64_t index, std::vector<Findi
   for (auto& entry : monitors_) {
     entry.monitor->CheckSilence(now_ms, entry.last_arrival_ms, index, out);
   }
+}
+
+std::vector<LotReport> Plant::TakeClosedLots() {
+  std::vector<LotReport> lots;
+  lots.swap(closed_lots_);
+  return lots;
+}
+
+void Plant::CloseAllLots(bool partial) {
+  for (auto& entry : monitors_) {
+    if (entry.compliance) entry.compliance->CloseLot(partial, &closed_lots_);
+  }
+}
+
+bool Plant::CloseLot(std::string_view line, bool partial) {
+  const auto it = std::lower_bound(
+      index_.begin(), index_.end(), line,
+      [](const auto& entry, std::string_view key) { return entry.first < key; });
+  if (it == index_.end() || it->first != line) return false;
+  Entry& entry = monitors_[it->second];
+  if (!entry.compliance) return false;
+  entry.compliance->CloseLot(partial, &closed_lots_);
+  return true;
 }
 
 std::vector<LineSnapshot> Plant::Snapshot() const {

@@ -14,10 +14,12 @@
 
 #include "core/model/finding.h"
 #include "core/monitor/line_settings.h"
+#include "core/monitor/lot_report.h"
 #include "core/record/record_view.h"
 
 namespace heft {
 
+class LineCompliance;
 class LineMonitor;
 
 // A line's state at a glance, for status pages, metrics and checkpoints.
@@ -53,6 +55,18 @@ class Plant {
   // attach to such findings (the next record's index in the source).
   void AdvanceTo(std::int64_t now_ms, std::int64_t index, std::vector<Finding>* out);
 
+  // Lots closed since the last call (by a lot boundary, CloseLot or
+  // CloseAllLots), in the order they closed. Lines with a nominal quantity and
+  // a rule table in PlantSettings::rule_tables keep lots (line_compliance.h).
+  std::vector<LotReport> TakeClosedLots();
+  // Closes every open lot now, e.g. at shutdown or the end of a replay; a lot
+  // cut short is marked partial. Drain them with TakeClosedLots().
+  void CloseAllLots(bool partial = true);
+  // Closes one line's open lot (operator command); false if the line keeps no lots.
+  bool CloseLot(std::string_view line, bool partial = false);
+  // Why lines that have a nominal keep no lots (e.g. a nominal outside the table).
+  const std::vector<std::string>& compliance_problems() const { return compliance_problems_; }
+
   std::vector<LineSnapshot> Snapshot() const;
   std::size_t line_count() const { return monitors_.size(); }
   const LineSettings& SettingsFor(std::string_view line) const;
@@ -60,6 +74,7 @@ class Plant {
  private:
   struct Entry {
     std::unique_ptr<LineMonitor> monitor;
+    std::unique_ptr<LineCompliance> compliance;  // null: no lots for this line
     std::int64_t last_arrival_ms = 0;  // arrival clock, for AdvanceTo
   };
   Entry* FindOrCreate(std::string_view line);
@@ -70,6 +85,8 @@ class Plant {
   std::size_t last_used_ = SIZE_MAX;                  // feeds often repeat a line: skip the search
   std::int64_t record_clock_ms_ = INT64_MIN;          // latest record time seen
   std::int64_t earliest_silence_deadline_ms_ = INT64_MAX;
+  std::vector<LotReport> closed_lots_;
+  std::vector<std::string> compliance_problems_;
 };
 
 }  // namespace heft

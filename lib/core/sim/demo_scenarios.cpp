@@ -79,6 +79,10 @@ const std::vector<DemoScenarioInfo>& DemoScenarios() {
       {"stuck", "oats-1", "packs 1500..1539: the checkweigher repeats one reading"},
       {"alternation", "honey-2", "from pack 1000 successive packs alternate +-1 sigma"},
       {"outliers", "oats-1", "in control with ten times the usual gross mis-fills (0.5 %)"},
+      {"target-lowered", "oats-1",
+       "the fill target is turned down from pack 600, 0.005 sigma/pack for 2400 packs (12 sigma)"},
+      {"high-giveaway", "oats-1",
+       "steady filling 6 g above the usual 503 g target: giveaway the safe target would save"},
   };
   return scenarios;
 }
@@ -149,6 +153,13 @@ Status MakeDemoScenario(std::string_view name, std::string_view line_id, std::ui
     c.push_back(Condition::Alternation(1000, 1.0 * s));
   } else if (name == "outliers") {
     spec.gross_probability = 10.0 * kDefaultGross;
+  } else if (name == "target-lowered") {
+    // 12 sigma over 2400 packs: the level passes the nominal, then nears T1.
+    spec.default_packs = 3600;
+    c.push_back(Condition::Ramp(600, -0.005 * s, 3000));
+  } else if (name == "high-giveaway") {
+    spec.default_packs = 7200;  // two full hourly lots at 60 packs a minute
+    spec.level_grams += 6.0;
   }
   *out = std::move(spec);
   return ValidateScenario(*out);
