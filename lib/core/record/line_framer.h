@@ -31,6 +31,16 @@ class LineFramer {
 
   std::size_t pending_bytes() const { return partial_.size(); }
 
+  // Drops an unterminated record (the stream was cut: disconnect, rotated or
+  // truncated file) and returns how many bytes it had so far (0 if none).
+  std::size_t Discard() {
+    const std::size_t dropped = dropping_ > 0 ? dropping_ : partial_.size();
+    partial_.clear();
+    dropping_ = 0;
+    last_was_cr_ = false;
+    return dropped;
+  }
+
  private:
   std::size_t max_record_;
   std::string partial_;       // bytes of an unterminated record carried across chunks

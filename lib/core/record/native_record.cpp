@@ -191,7 +191,7 @@ bool ParseStatus(std::string_view s, PackStatus* status) {
   return true;
 }
 
-RecordParse Fail(RecordError error, int field) { return RecordParse{error, field}; }
+RecordParse Fail(RecordError error, int field) { return RecordParse{error, field, {}}; }
 
 void PutDigits(char*& p, std::int64_t value, int width) {
   char* end = p + width;
@@ -228,6 +228,14 @@ std::string_view RecordErrorName(RecordError error) {
       return "bad_status";
     case RecordError::kTooLong:
       return "too_long";
+    case RecordError::kMissingField:
+      return "missing_field";
+    case RecordError::kNoMatch:
+      return "no_match";
+    case RecordError::kBadSyntax:
+      return "bad_syntax";
+    case RecordError::kTruncated:
+      return "truncated";
   }
   return "unknown";
 }

@@ -32,13 +32,19 @@ enum class RecordError : std::uint8_t {
   kBadUnit,
   kBadStatus,
   kTooLong,      // over the framer's maximum length (reported by the framer's user)
+  // Configured (non-native) formats, core/record/record_format.h:
+  kMissingField,  // a required field (weight, line) is not in the record
+  kNoMatch,       // the record does not match the source's pattern
+  kBadSyntax,     // not well-formed for the format (e.g. not a JSON object)
+  kTruncated,     // an unterminated record cut off by a disconnect or file rotation
 };
 
 std::string_view RecordErrorName(RecordError error);
 
 struct RecordParse {
   RecordError error = RecordError::kNone;
-  int field = -1;  // 0-based field where the problem is, or -1
+  int field = -1;  // 0-based field (column) where the problem is, or -1
+  std::string_view field_name;  // static name (RecordFieldName) for configured formats, or ""
   bool ok() const { return error == RecordError::kNone; }
 };
 
