@@ -50,6 +50,27 @@ void BatchWriter::AddSample(SampleRow row) {
   FlushIfFull();
 }
 
+void BatchWriter::AddLot(LotRow row) { lots_.push_back(std::move(row)); }
+
+bool BatchWriter::FlushLots() {
+  if (lots_.empty()) return true;
+  const Status status = store_.WriteLots(lots_);
+  if (!status.ok()) {
+    ++counters_.failed_lot_writes;
+    if (!lots_failing_) {
+      lots_failing_ = true;
+      spdlog::error("storage: writing {} closed lots failed: {}; holding them and retrying",
+                    lots_.size(), status.message());
+    }
+    return false;
+  }
+  if (lots_failing_) spdlog::info("storage: lot writes recovered; wrote {} lots", lots_.size());
+  lots_failing_ = false;
+  counters_.lots_written += static_cast<std::int64_t>(lots_.size());
+  lots_.clear();
+  return true;
+}
+
 void BatchWriter::FlushIfFull() {
   // While failing, only the timer retries: hammering a broken disk on every
   // record would stall ingest for nothing.
@@ -58,7 +79,7 @@ void BatchWriter::FlushIfFull() {
 }
 
 bool BatchWriter::Flush() {
-  if (events_.empty() && samples_.empty()) return true;
+  if (events_.empty() && samples_.empty()) return FlushLots();
   const Status status = store_.WriteBatch(events_, samples_);
   if (!status.ok()) {
     ++counters_.failed_writes;
@@ -94,7 +115,7 @@ bool BatchWriter::Flush() {
   dropped_in_spell_ = 0;
   events_.clear();
   samples_.clear();
-  return true;
+  return FlushLots();
 }
 
 void BatchWriter::Stop() {
@@ -103,8 +124,9 @@ void BatchWriter::Stop() {
   const std::size_t events = events_.size();
   const std::size_t samples = samples_.size();
   if (!Flush()) {
-    spdlog::error("storage: final write failed; {} events and {} samples were not stored", events,
-                  samples);
+    spdlog::error(
+        "storage: final write failed; {} events, {} samples and {} lots were not stored",
+        events_.empty() ? 0 : events, samples_.empty() ? 0 : samples, lots_.size());
   }
 }
 

@@ -43,6 +43,8 @@ class BatchWriter {
     std::int64_t samples_written = 0;
     std::int64_t samples_dropped = 0;  // queue full while storage was failing or slow
     std::int64_t failed_writes = 0;    // WriteBatch calls that returned an error
+    std::int64_t lots_written = 0;
+    std::int64_t failed_lot_writes = 0;  // WriteLots calls that returned an error
   };
 
   BatchWriter(boost::asio::io_context& io, Store& store, BatchWriterOptions options);
@@ -55,6 +57,9 @@ class BatchWriter {
   void AddEvent(EventRow row);
   // Queues one raw sample; dropped (and counted) when the sample queue is full.
   void AddSample(SampleRow row);
+  // Queues one closed lot; never dropped. Lots go in their own transaction
+  // (Store::WriteLots) after the events and samples of the same flush.
+  void AddLot(LotRow row);
   // Writes everything queued now, synchronously. True when the queue is empty
   // afterwards; false after a failed write (rows stay queued).
   bool Flush();
@@ -65,18 +70,22 @@ class BatchWriter {
   const Counters& counters() const { return counters_; }
   std::size_t queued_events() const { return events_.size(); }
   std::size_t queued_samples() const { return samples_.size(); }
+  std::size_t queued_lots() const { return lots_.size(); }
   // True from a failed write until the next successful one.
   bool failing() const { return failing_; }
 
  private:
   void ArmTimer();
   void FlushIfFull();
+  bool FlushLots();  // true when no lot stays queued
 
   boost::asio::steady_timer timer_;
   Store& store_;
   BatchWriterOptions options_;
   std::vector<EventRow> events_;
   std::vector<SampleRow> samples_;
+  std::vector<LotRow> lots_;
+  bool lots_failing_ = false;  // logged once per failing spell
   Counters counters_;
   bool stopped_ = false;
   bool failing_ = false;  // sticky until a write succeeds

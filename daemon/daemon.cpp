@@ -12,8 +12,12 @@
 
 #include "batch_writer.h"
 #include "clock.h"
+#include "http_api.h"
+#include "http_server.h"
 #include "ingest_server.h"
+#include "source_set.h"
 #include "io/sqlite_store.h"
+#include "alarm_service.h"
 #include "line_engine.h"
 
 namespace heft {
@@ -88,8 +92,27 @@ Status Daemon::Start() {
                                : std::size_t{1};
   writer_ = std::make_unique<BatchWriter>(io_, *store_, options);
   engine_ = std::make_unique<LineEngine>(config_.plant, *writer_, clock_, storage.raw_samples);
+  alarms_ = std::make_unique<AlarmService>(io_, config_.alerting, clock_);
+  status = alarms_->Start(storage.database, engine_->plant());
+  if (!status.ok()) return Status::Error("cannot start alarms: " + status.message());
+  engine_->SetFindingsListener(
+      [this](const std::vector<Finding>& findings) { alarms_->OnFindings(findings); });
   server_ = std::make_unique<IngestServer>(io_, *engine_, config_.listen.max_connections);
-  status = server_->Listen(config_.listen.address, config_.listen.port);
+  if (config_.listen.enabled) {  // off when the config has `sources:` and no `listen:`
+    status = server_->Listen(config_.listen.address, config_.listen.port);
+    if (!status.ok()) return status;
+  }
+  if (config_.http.enabled) {  // HTTP API and live page (http_server.h)
+    http_api_ = std::make_unique<HttpApi>(io_, *engine_, *writer_, config_.plant, storage.database);
+    http_server_ = std::make_unique<HttpServer>(io_, *http_api_);
+    status = http_server_->Listen(config_.http.address, config_.http.port);
+    if (!status.ok()) return status;
+    const auto http_endpoint = http_server_->local_endpoint();
+    spdlog::info("http: serving on {}:{}", http_endpoint.address().to_string(),
+                 http_endpoint.port());
+  }
+  sources_ = std::make_unique<SourceSet>(io_, *engine_);
+  status = sources_->Start(config_.sources);
   if (!status.ok()) return status;
 
   boost::system::error_code ec;
@@ -106,8 +129,12 @@ Status Daemon::Start() {
   tick_due_ = std::chrono::steady_clock::now();
   ArmTick();
 
-  const auto endpoint = server_->local_endpoint();
-  spdlog::info("listening on {}:{}", endpoint.address().to_string(), endpoint.port());
+  if (config_.listen.enabled) {
+    const auto endpoint = server_->local_endpoint();
+    spdlog::info("listening on {}:{}", endpoint.address().to_string(), endpoint.port());
+  } else {
+    spdlog::info("ready: {} configured sources, no listen block", config_.sources.size());
+  }
   return Status::Ok();
 }
 
@@ -137,8 +164,13 @@ void Daemon::Shutdown(std::string_view why) {
   ::pthread_sigmask(SIG_SETMASK, &previous, nullptr);
   tick_timer_.cancel();
 
+  if (http_server_) http_server_->Stop();  // no more pages; then the API's worker ends
+  if (http_api_) http_api_->Stop();
   server_->Stop();  // sessions finish their ingest: the last findings are queued
+  sources_->Stop();  // configured sources too (source_set.h)
+  engine_->CloseAllLots();  // open lots are stored as partial
   writer_->Stop();  // the last batch, synchronously
+  alarms_->Stop();  // records the last transitions; workers finish their delivery
   const std::size_t unsaved_events = writer_->queued_events();
   const std::size_t unsaved_samples = writer_->queued_samples();
   store_.reset();  // closes the database
@@ -169,6 +201,7 @@ void Daemon::OnTick(const boost::system::error_code& ec) {
     tick_due_ = now;  // do not fire a burst of catch-up ticks
   }
   engine_->AdvanceClock();
+  alarms_->Tick();
   ArmTick();
 }
 

@@ -34,8 +34,12 @@ namespace heft {
 
 class BatchWriter;
 class Clock;
+class HttpApi;
+class HttpServer;
 class IngestServer;
+class SourceSet;
 class LineEngine;
+class AlarmService;
 
 class Daemon {
  public:
@@ -70,6 +74,10 @@ class Daemon {
   std::unique_ptr<BatchWriter> writer_;
   std::unique_ptr<LineEngine> engine_;
   std::unique_ptr<IngestServer> server_;
+  std::unique_ptr<HttpApi> http_api_;      // http_api.h; null when http is off
+  std::unique_ptr<HttpServer> http_server_;
+  std::unique_ptr<SourceSet> sources_;  // the config's `sources:` list (source_set.h)
+  std::unique_ptr<AlarmService> alarms_;  // alarm lifecycle and delivery (alarm_service.h)
   boost::asio::signal_set signals_;
   boost::asio::steady_timer tick_timer_;
   std::chrono::steady_clock::time_point tick_due_;

@@ -27,6 +27,15 @@ IngestServer::IngestServer(boost::asio::io_context& io, LineEngine& engine, int 
       engine_(engine),
       max_connections_(max_connections > 0 ? static_cast<std::size_t>(max_connections) : 1) {}
 
+void IngestServer::Configure(std::string name, PeerAllowList allow,
+                             std::unique_ptr<RecordFormat> format, std::size_t max_record) {
+  limit_key_ = "sources[" + name + "].max_connections";
+  name_ = std::move(name);
+  allow_ = std::move(allow);
+  format_ = std::move(format);
+  max_record_ = max_record;
+}
+
 Status IngestServer::Listen(const std::string& address, int port) {
   namespace ip = boost::asio::ip;
   const std::string where = fmt::format("{}:{}", address, port);
@@ -77,18 +86,22 @@ void IngestServer::OnAccept(const boost::system::error_code& ec,
   }
   boost::system::error_code peer_ec;
   const auto peer = socket.remote_endpoint(peer_ec);
-  const std::string source = peer_ec ? std::string("tcp:unknown") : "tcp:" + EndpointText(peer);
-  if (sessions_.size() >= max_connections_) {
+  const std::string source = name_ + ":" + (peer_ec ? std::string("unknown") : EndpointText(peer));
+  if (!allow_.empty() && (peer_ec || !allow_.Allows(peer.address()))) {
     ++refused_;
-    spdlog::warn(
-        "refusing connection {}: {} feed connections already open (listen."
-        "max_connections)",
-        source, sessions_.size());
+    spdlog::warn("refusing connection {}: peer address not in the allow list", source);
+    boost::system::error_code ignored;
+    socket.close(ignored);
+  } else if (sessions_.size() >= max_connections_) {
+    ++refused_;
+    spdlog::warn("refusing connection {}: {} feed connections already open ({})", source,
+                 sessions_.size(), limit_key_);
     boost::system::error_code ignored;
     socket.close(ignored);
   } else {
-    auto session =
-        std::make_shared<FeedSession>(std::move(socket), engine_.OpenSource(source), *this);
+    std::unique_ptr<IngestSource> ingest = engine_.OpenSource(source);
+    if (format_) ingest->UseFormat(format_->Clone(), max_record_);
+    auto session = std::make_shared<FeedSession>(std::move(socket), std::move(ingest), *this);
     sessions_.insert(session);
     spdlog::info("session {} opened ({} open)", source, sessions_.size());
     session->Start();

@@ -36,6 +36,18 @@ void IngestSource::Finish() {
   ReportSuppressed();
 }
 
+void IngestSource::UseFormat(std::unique_ptr<RecordFormat> format, std::size_t max_record) {
+  ingest_.SetFormat(std::move(format), max_record);
+}
+
+void IngestSource::Restart() {
+  if (finished_) return;
+  const IngestCounters before = ingest_.counters();
+  findings_.clear();
+  ingest_.Restart();
+  AfterIngest(before);
+}
+
 void IngestSource::AfterIngest(const IngestCounters& before) {
   const IngestCounters& after = ingest_.counters();
   engine_.OnCounters(before, after);
@@ -69,8 +81,14 @@ void IngestSource::OnProblem(const RecordProblem& problem) {
     return;
   }
   ++shown_in_window_;
-  const std::string field =
-      problem.field >= 0 ? fmt::format(" in field {}", problem.field + 1) : std::string();
+  std::string field;
+  if (!problem.field_name.empty()) {  // a configured format: name the field
+    field = problem.field >= 0
+                ? fmt::format(" in field {} (column {})", problem.field_name, problem.field + 1)
+                : fmt::format(" in field {}", problem.field_name);
+  } else if (problem.field >= 0) {
+    field = fmt::format(" in field {}", problem.field + 1);
+  }
   spdlog::warn("malformed record: source {} record {}: {}{} ({} bytes): \"{}\"", name_,
                problem.index, RecordErrorName(problem.error), field, problem.length,
                problem.excerpt);

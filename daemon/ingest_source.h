@@ -12,13 +12,16 @@
 // and must outlive this object.
 #pragma once
 
+#include <cstddef>
 #include <cstdint>
+#include <memory>
 #include <string>
 #include <string_view>
 #include <vector>
 
 #include "core/model/finding.h"
 #include "core/monitor/stream_ingest.h"
+#include "core/record/record_format.h"
 
 namespace heft {
 
@@ -38,6 +41,12 @@ class IngestSource final : public IngestListener {
   void Feed(std::string_view bytes);
   // End of stream: the unterminated last record counts too. Idempotent.
   void Finish();
+  // Reads the source's configured format instead of native CSV, framed at
+  // `max_record` bytes. REQUIRES: before the first Feed.
+  void UseFormat(std::unique_ptr<RecordFormat> format, std::size_t max_record);
+  // The stream was cut and goes on anew (reconnect, rotated file): an
+  // unterminated record is dropped and counted (StreamIngest::Restart).
+  void Restart();
 
   const std::string& name() const { return name_; }
   const IngestCounters& counters() const { return ingest_.counters(); }

@@ -2,6 +2,7 @@
 
 #include <utility>
 
+#include <fmt/format.h>
 #include <spdlog/spdlog.h>
 
 #include "batch_writer.h"
@@ -55,6 +56,32 @@ void LineEngine::OnFindings(const std::string& source, const std::vector<Finding
     row.recorded_ms = clock_.NowMs();
     writer_.AddEvent(std::move(row));
   }
+  QueueClosedLots(source);
+  if (findings_listener_ && !findings.empty()) findings_listener_(findings);
+}
+
+void LineEngine::QueueClosedLots(const std::string& source) {
+  for (LotReport& lot : plant_.TakeClosedLots()) {
+    const comply::LotFigures& f = lot.figures;
+    std::string verdicts;
+    for (const LotVerdict& v : lot.verdicts) {
+      verdicts += fmt::format("{}{} {}", verdicts.empty() ? "" : ", ", v.rule_id, v.state);
+    }
+    spdlog::info("LOT {}{}: {} packs, mean {:.2f} g, s {:.2f} g, {} below T1, {} below T2, "
+                 "giveaway {:.2f} kg; {}",
+                 lot.lot_id, lot.partial ? " (partial)" : "", f.count, f.mean_g, f.s_g,
+                 f.t1_count, f.t2_count, f.giveaway_g / 1000.0, verdicts);
+    LotRow row;
+    row.lot = std::move(lot);
+    row.source = source;
+    row.recorded_ms = clock_.NowMs();
+    writer_.AddLot(std::move(row));
+  }
+}
+
+void LineEngine::CloseAllLots() {
+  plant_.CloseAllLots(true);
+  QueueClosedLots("heftd:shutdown");
 }
 
 void LineEngine::OnCounters(const IngestCounters& before, const IngestCounters& after) {

@@ -15,6 +15,7 @@
 #pragma once
 
 #include <cstdint>
+#include <functional>
 #include <memory>
 #include <string>
 #include <string_view>
@@ -62,6 +63,15 @@ class LineEngine {
   // index its next record will take, which is what `heft replay` attaches.
   void AdvanceClock();
 
+  // Shutdown: closes every open lot (marked partial) and queues it.
+  void CloseAllLots();
+
+  // Called with each non-empty batch of findings, after they are logged and
+  // queued (heftd's AlarmService). Same thread.
+  void SetFindingsListener(std::function<void(const std::vector<Finding>&)> listener) {
+    findings_listener_ = std::move(listener);
+  }
+
   const Totals& totals() const { return totals_; }
   const Plant& plant() const { return plant_; }
 
@@ -72,12 +82,16 @@ class LineEngine {
   void OnCounters(const IngestCounters& before, const IngestCounters& after);
 
  private:
+  // Logs the lots the Plant closed (`LOT ...` at info) and queues them.
+  void QueueClosedLots(const std::string& source);
+
   Plant plant_;
   BatchWriter& writer_;
   const Clock& clock_;
   const bool keep_samples_;
   Totals totals_;
   std::vector<Finding> tick_findings_;  // reused by AdvanceClock
+  std::function<void(const std::vector<Finding>&)> findings_listener_;
 };
 
 }  // namespace heft

@@ -16,6 +16,7 @@
 #include <cstdio>
 #include <cstring>
 #include <exception>
+#include <filesystem>
 #include <initializer_list>
 #include <map>
 #include <optional>
@@ -27,6 +28,9 @@
 #include <fmt/format.h>
 
 #include "core/record/native_record.h"
+#include "io/alerting_loader.h"
+#include "io/source_config_loader.h"
+#include "io/rule_table_finder.h"
 
 namespace heft {
 namespace {
@@ -38,17 +42,30 @@ using KeyList = std::span<const std::string_view>;
 
 // The schema's keys, per block. A line entry takes kLineOnlyKeys and
 // kDetectorKeys; a `defaults` block only kDetectorKeys.
-constexpr std::array kTopKeys = {"listen"sv,   "storage"sv,   "log"sv,
-                                 "defaults"sv, "max_lines"sv, "lines"sv};
+constexpr std::array kTopKeys = {"listen"sv,   "storage"sv,   "log"sv,    "defaults"sv,
+                                 "max_lines"sv, "lines"sv,     "sources"sv, "alerting"sv, "http"sv};
 constexpr std::array kListenKeys = {"address"sv, "port"sv, "max_connections"sv};
 constexpr std::array kStorageKeys = {"database"sv, "raw_samples"sv, "raw_retention_days"sv,
                                      "flush_interval_ms"sv, "batch_max_rows"sv};
 constexpr std::array kLogKeys = {"file"sv, "level"sv};
+constexpr std::array kHttpKeys = {"enabled"sv, "address"sv, "port"sv, "token"sv};
 constexpr std::array kDetectorKeys = {
     "false_alarms_per_day"sv, "pack_rate_per_min"sv, "min_shift_sigma"sv,
     "baseline_packs"sv,       "silence_s"sv,         "gross_low_ratio"sv,
     "gross_high_ratio"sv};
 constexpr std::array kLineOnlyKeys = {"id"sv, "product"sv, "nominal_g"sv, "target_g"sv, "heads"sv};
+// Net-content compliance keys, allowed in `defaults` and in line entries.
+constexpr std::array kComplianceKeys = {"rules"sv,       "rules_allow_unconfirmed"sv,
+                                        "cost_per_kg"sv, "rejects_in_lot"sv,
+                                        "lots"sv,        "compliance"sv,
+                                        "safe_target"sv};
+constexpr std::array kLotKeys = {"by"sv, "packs_per_lot"sv, "shifts"sv, "utc_offset_minutes"sv};
+constexpr std::array kComplianceAlertKeys = {
+    "min_packs"sv,           "mean_warn_probability"sv, "mean_alarm_probability"sv,
+    "t1_warn_share_of_limit"sv, "t1_share_min_packs"sv, "t1_warn_probability"sv,
+    "t1_alarm_probability"sv,   "t2_alarm"sv,           "hold_off_packs"sv};
+constexpr std::array kSafeTargetKeys = {"t2_risk"sv, "confidence"sv, "t1_share_of_limit"sv,
+                                        "mean_margin_g"sv, "hours_per_year"sv};
 
 // An allowed numeric interval; open ends exclude the bound.
 struct Range {
@@ -177,11 +194,36 @@ class Loader {
   void LoadListen(const YAML::Node& node, ListenSettings* out);
   void LoadStorage(const YAML::Node& node, StorageSettings* out);
   void LoadLog(const YAML::Node& node, LogSettings* out);
+  void LoadHttp(const YAML::Node& node, HttpSettings* out);
   // One of kDetectorKeys; returns false if `key` is not one.
   bool LoadDetectorKey(std::string_view key, const YAML::Node& value, const YAML::Mark& mark,
                        std::string_view path, LineSettings* out);
   void LoadDefaults(const YAML::Node& node, LineSettings* out);
   void LoadLines(const YAML::Node& node, PlantSettings* plant);
+  // One of kComplianceKeys; returns false if `key` is not one.
+  bool LoadComplianceKey(std::string_view key, const YAML::Node& value, const YAML::Mark& mark,
+                         std::string_view path, LineSettings* out);
+  void LoadLots(const YAML::Node& node, const YAML::Mark& mark, std::string_view path,
+                comply::LotPolicy* out);
+  void LoadComplianceAlert(const YAML::Node& node, std::string_view path, LineSettings* out);
+  void LoadSafeTarget(const YAML::Node& node, std::string_view path,
+                      comply::SafeTargetSettings* out);
+  // Loads the rule tables the lines name (once per file) into the plant settings.
+  void ResolveRules(Config* config);
+
+  struct RulesKey {  // where a `rules` key was given
+    YAML::Mark mark;
+    std::string path;
+  };
+  struct PendingLine {  // a line whose rule table is resolved after loading
+    std::string id;
+    std::optional<RulesKey> rules;
+    YAML::Mark mark;  // the line entry
+    std::string path;
+  };
+  std::optional<RulesKey> rules_given_;  // set by LoadComplianceKey("rules")
+  std::optional<RulesKey> defaults_rules_;
+  std::vector<PendingLine> pending_lines_;
 
   struct Found {
     int line;
@@ -386,9 +428,15 @@ bool Loader::LoadDetectorKey(std::string_view key, const YAML::Node& value, cons
 }
 
 void Loader::LoadDefaults(const YAML::Node& node, LineSettings* out) {
-  ForEachKey(node, "defaults", {kDetectorKeys}, kLineOnlyKeys,
+  rules_given_.reset();
+  ForEachKey(node, "defaults", {kDetectorKeys, kComplianceKeys}, kLineOnlyKeys,
              [&](std::string_view key, const YAML::Node& value, const std::string& path,
-                 const YAML::Mark& mark) { LoadDetectorKey(key, value, mark, path, out); });
+                 const YAML::Mark& mark) {
+               if (!LoadDetectorKey(key, value, mark, path, out)) {
+                 LoadComplianceKey(key, value, mark, path, out);
+               }
+             });
+  defaults_rules_ = rules_given_;
 }
 
 void Loader::LoadLines(const YAML::Node& node, PlantSettings* plant) {
@@ -409,8 +457,9 @@ void Loader::LoadLines(const YAML::Node& node, PlantSettings* plant) {
     std::string id;
     bool id_ok = false;
     bool has_id = false;
+    rules_given_.reset();
     ForEachKey(
-        item, item_path, {kLineOnlyKeys, kDetectorKeys}, {},
+        item, item_path, {kLineOnlyKeys, kDetectorKeys, kComplianceKeys}, {},
         [&](std::string_view key, const YAML::Node& value, const std::string& path,
             const YAML::Mark& mark) {
           if (key == "id") {
@@ -443,18 +492,41 @@ void Loader::LoadLines(const YAML::Node& node, PlantSettings* plant) {
             }
           } else if (key == "heads") {
             ReadInt(value, mark, path, 0, 256, &settings.heads);
-          } else {
-            LoadDetectorKey(key, value, mark, path, &settings);
+          } else if (!LoadDetectorKey(key, value, mark, path, &settings)) {
+            LoadComplianceKey(key, value, mark, path, &settings);
           }
         });
     if (!has_id) Error(item.Mark(), item_path, "missing required key \"id\"");
+    if (id_ok) pending_lines_.push_back({id, rules_given_, item.Mark(), item_path});
     if (id_ok) plant->lines.emplace(id, std::move(settings));
   }
 }
 
+void Loader::LoadHttp(const YAML::Node& node, HttpSettings* out) {
+  out->enabled = true;  // giving the block turns the server on
+  ForEachKey(node, "http", {kHttpKeys}, {},
+             [&](std::string_view key, const YAML::Node& value, const std::string& path,
+                 const YAML::Mark& mark) {
+               if (key == "enabled") ReadBool(value, mark, path, &out->enabled);
+               if (key == "address") ReadNonEmptyString(value, mark, path, &out->address);
+               if (key == "port") ReadInt(value, mark, path, 0, 65535, &out->port);
+               if (key == "token") {
+                 std::string token;
+                 if (!ReadString(value, mark, path, &token)) return;
+                 if (!token.empty() && token.size() < 16) {
+                   Error(mark, path, "must be empty or at least 16 characters long");
+                   return;
+                 }
+                 out->token = std::move(token);
+               }
+             });
+}
+
 void Loader::Load(const YAML::Node& root, Config* config) {
   // Copies, not yaml-cpp assignment (which would rewrite the node assigned to).
-  std::optional<YAML::Node> listen, storage, log, defaults, lines, max_lines;
+  std::optional<YAML::Node> listen, storage, log, defaults, lines, max_lines, sources;
+  std::optional<YAML::Node> alerting;  // io/alerting_loader.h
+  std::optional<YAML::Node> http;      // daemon/http_server.h
   YAML::Mark max_lines_mark;
   ForEachKey(root, "", {kTopKeys}, {},
              [&](std::string_view key, const YAML::Node& value, const std::string&,
@@ -464,14 +536,24 @@ void Loader::Load(const YAML::Node& root, Config* config) {
                if (key == "log") log.emplace(value);
                if (key == "defaults") defaults.emplace(value);
                if (key == "lines") lines.emplace(value);
+               if (key == "sources") sources.emplace(value);
+               if (key == "alerting") alerting.emplace(value);
+               if (key == "http") http.emplace(value);
                if (key == "max_lines") {
                  max_lines.emplace(value);
                  max_lines_mark = mark;
                }
              });
   if (listen) LoadListen(*listen, &config->listen);
+  if (sources) {  // io/source_config_loader.h; with sources and no listen block, no default listener
+    std::vector<ConfigProblem> found;
+    LoadSourcesNode(*sources, name_, &config->sources, &found);
+    for (ConfigProblem& p : found) errors_.push_back({p.line, p.column, std::move(p.text)});
+    if (!listen) config->listen.enabled = false;
+  }
   if (storage) LoadStorage(*storage, &config->storage);
   if (log) LoadLog(*log, &config->log);
+  if (http) LoadHttp(*http, &config->http);
   // Defaults first, wherever they stand in the file: every line starts from them.
   if (defaults) LoadDefaults(*defaults, &config->plant.defaults);
   bool max_lines_ok = true;
@@ -485,6 +567,217 @@ void Loader::Load(const YAML::Node& root, Config* config) {
       Error(lines->Mark(), "lines",
             fmt::format("lists {} lines, more than max_lines ({})", lines->size(),
                         config->plant.max_lines));
+    }
+  }
+  ResolveRules(config);
+  if (alerting) {
+    LoadAlerting(
+        *alerting, name_,
+        [&](const YAML::Mark& m, std::string_view p, std::string_view r) { Error(m, p, r); },
+        &config->alerting);
+  }
+}
+
+// --- Net-content compliance keys (rules, lots, compliance, safe_target). ---
+
+bool Loader::LoadComplianceKey(std::string_view key, const YAML::Node& value,
+                               const YAML::Mark& mark, std::string_view path, LineSettings* out) {
+  if (key == "rules") {
+    if (ReadNonEmptyString(value, mark, path, &out->rules)) {
+      rules_given_ = RulesKey{mark, std::string(path)};
+    }
+  } else if (key == "rules_allow_unconfirmed") {
+    ReadBool(value, mark, path, &out->rules_allow_unconfirmed);
+  } else if (key == "cost_per_kg") {
+    ReadDouble(value, mark, path, Closed(0.0, 1e6), &out->cost_per_kg);
+  } else if (key == "rejects_in_lot") {
+    ReadBool(value, mark, path, &out->rejects_in_lot);
+  } else if (key == "lots") {
+    LoadLots(value, mark, path, &out->lots);
+  } else if (key == "compliance") {
+    LoadComplianceAlert(value, path, out);
+  } else if (key == "safe_target") {
+    LoadSafeTarget(value, path, &out->safe_target);
+  } else {
+    return false;
+  }
+  return true;
+}
+
+void Loader::LoadLots(const YAML::Node& node, const YAML::Mark& mark, std::string_view path,
+                      comply::LotPolicy* out) {
+  comply::LotPolicy policy = *out;
+  bool boundary_given = false;
+  const std::size_t errors_before = errors_.size();
+  ForEachKey(
+      node, path, {kLotKeys}, {},
+      [&](std::string_view key, const YAML::Node& value, const std::string& key_path,
+          const YAML::Mark& key_mark) {
+        if (key == "by") {
+          std::string by;
+          if (!ReadString(value, key_mark, key_path, &by)) return;
+          boundary_given = true;
+          if (by == "count") {
+            policy.boundary = comply::LotBoundary::kCount;
+          } else if (by == "hour") {
+            policy.boundary = comply::LotBoundary::kHour;
+          } else if (by == "shifts") {
+            policy.boundary = comply::LotBoundary::kShifts;
+          } else if (by == "manual") {
+            policy.boundary = comply::LotBoundary::kManual;
+          } else {
+            Error(key_mark, key_path,
+                  fmt::format("must be one of count, hour, shifts, manual; got {}",
+                              DescribeNode(value)));
+          }
+        } else if (key == "packs_per_lot") {
+          ReadInt(value, key_mark, key_path, 1, 100'000'000, &policy.packs_per_lot);
+        } else if (key == "utc_offset_minutes") {
+          ReadInt(value, key_mark, key_path, -16 * 60, 16 * 60, &policy.utc_offset_minutes);
+        } else if (key == "shifts") {
+          if (!value.IsSequence() || value.size() == 0) {
+            Error(key_mark, key_path,
+                  fmt::format("expected a list of shift start times like \"06:00\", got {}",
+                              DescribeNode(value)));
+            return;
+          }
+          std::vector<int> starts;
+          for (std::size_t i = 0; i < value.size(); ++i) {
+            const YAML::Node item = value[i];
+            const std::string item_path = fmt::format("{}[{}]", key_path, i);
+            // "HH:MM" (24 h clock, local time).
+            std::optional<int> minutes;
+            if (item.IsScalar()) {
+              const std::string& text = item.Scalar();
+              const auto colon = text.find(':');
+              if (colon != std::string::npos && colon >= 1 && colon <= 2 &&
+                  text.size() == colon + 3) {
+                const auto h = ParseInteger(std::string_view(text).substr(0, colon));
+                const auto m = ParseInteger(std::string_view(text).substr(colon + 1));
+                if (h && m && *h >= 0 && *h <= 23 && *m >= 0 && *m <= 59 &&
+                    text[colon + 1] != '+' && text[0] != '+') {
+                  minutes = static_cast<int>(*h * 60 + *m);
+                }
+              }
+            }
+            if (!minutes) {
+              Error(item.Mark(), item_path,
+                    fmt::format("expected a time of day like \"06:00\", got {}",
+                                DescribeNode(item)));
+              return;
+            }
+            if (!starts.empty() && *minutes <= starts.back()) {
+              Error(item.Mark(), item_path,
+                    "shift starts must be in increasing order within one day");
+              return;
+            }
+            starts.push_back(*minutes);
+          }
+          policy.shift_start_minutes = std::move(starts);
+        }
+      });
+  if (errors_.size() != errors_before) return;
+  if (boundary_given || node.IsMap()) {
+    if (Status s = comply::ValidateLotPolicy(policy); !s.ok()) {
+      Error(mark, path, s.message());
+      return;
+    }
+  }
+  *out = std::move(policy);
+}
+
+void Loader::LoadComplianceAlert(const YAML::Node& node, std::string_view path,
+                                 LineSettings* out) {
+  comply::ComplianceAlertSettings& a = out->compliance;
+  ForEachKey(node, path, {kComplianceAlertKeys}, {},
+             [&](std::string_view key, const YAML::Node& value, const std::string& key_path,
+                 const YAML::Mark& mark) {
+               const Range probability = Range{0.0, 1.0, true, true, true};
+               if (key == "min_packs") ReadInt(value, mark, key_path, 2, 10'000'000, &a.min_packs);
+               if (key == "mean_warn_probability") {
+                 ReadDouble(value, mark, key_path, probability, &a.mean_warn_probability);
+               }
+               if (key == "mean_alarm_probability") {
+                 ReadDouble(value, mark, key_path, probability, &a.mean_alarm_probability);
+               }
+               if (key == "t1_warn_share_of_limit") {
+                 ReadDouble(value, mark, key_path, AboveAtMost(0.0, 10.0),
+                            &a.t1_warn_share_of_limit);
+               }
+               if (key == "t1_share_min_packs") {
+                 ReadInt(value, mark, key_path, 2, 10'000'000, &a.t1_share_min_packs);
+               }
+               if (key == "t1_warn_probability") {
+                 ReadDouble(value, mark, key_path, probability, &a.t1_warn_probability);
+               }
+               if (key == "t1_alarm_probability") {
+                 ReadDouble(value, mark, key_path, probability, &a.t1_alarm_probability);
+               }
+               if (key == "t2_alarm") ReadBool(value, mark, key_path, &a.t2_alarm);
+               if (key == "hold_off_packs") {
+                 ReadInt(value, mark, key_path, 0, 10'000'000, &out->compliance_hold_off_packs);
+               }
+             });
+  if (node.IsMap() && (a.mean_warn_probability > a.mean_alarm_probability ||
+                       a.t1_warn_probability > a.t1_alarm_probability)) {
+    Error(node.Mark(), path,
+          "warning probabilities must not be above the alarm probabilities "
+          "(mean_warn_probability <= mean_alarm_probability, t1_warn_probability <= "
+          "t1_alarm_probability)");
+  }
+}
+
+void Loader::LoadSafeTarget(const YAML::Node& node, std::string_view path,
+                            comply::SafeTargetSettings* out) {
+  ForEachKey(node, path, {kSafeTargetKeys}, {},
+             [&](std::string_view key, const YAML::Node& value, const std::string& key_path,
+                 const YAML::Mark& mark) {
+               // Per pack P(below T2): between 1e-9 and 0.1.
+               if (key == "t2_risk") {
+                 ReadDouble(value, mark, key_path, Closed(1e-9, 0.1), &out->tail_probability);
+               }
+               if (key == "confidence") {
+                 ReadDouble(value, mark, key_path, AtLeastBelow(0.5, 1.0), &out->mean_confidence);
+               }
+               if (key == "t1_share_of_limit") {
+                 ReadDouble(value, mark, key_path, AboveAtMost(0.0, 1.0),
+                            &out->t1_share_of_limit);
+               }
+               if (key == "mean_margin_g") {
+                 ReadDouble(value, mark, key_path, Closed(0.0, 1000.0), &out->mean_margin_g);
+               }
+               if (key == "hours_per_year") {
+                 ReadDouble(value, mark, key_path, Closed(0.0, 8784.0), &out->hours_per_year);
+               }
+             });
+}
+
+void Loader::ResolveRules(Config* config) {
+  const std::string base_dir = std::filesystem::path(name_).parent_path().string();
+  PlantSettings& plant = config->plant;
+  bool defaults_failed = false;
+  if (defaults_rules_) {
+    // Checked even without a nominal, so a typo shows before any line uses it.
+    LineSettings probe = plant.defaults;
+    probe.nominal_g.reset();
+    if (Status s = ResolveLineRules(&probe, base_dir, &plant); !s.ok()) {
+      Error(defaults_rules_->mark, defaults_rules_->path, s.message());
+      defaults_failed = true;
+    } else {
+      plant.defaults.rules = probe.rules;
+    }
+  }
+  for (const PendingLine& pending : pending_lines_) {
+    auto it = plant.lines.find(pending.id);
+    if (it == plant.lines.end()) continue;
+    LineSettings& line = it->second;
+    if (!pending.rules && (defaults_failed || !line.nominal_g)) continue;
+    if (Status s = ResolveLineRules(&line, base_dir, &plant); !s.ok()) {
+      if (pending.rules) {
+        Error(pending.rules->mark, pending.rules->path, s.message());
+      } else {
+        Error(pending.mark, pending.path, s.message());
+      }
     }
   }
 }

@@ -10,6 +10,8 @@
 
 #include "core/model/status.h"
 #include "core/monitor/line_settings.h"
+#include "io/alerting_settings.h"
+#include "io/source_settings.h"
 
 namespace heft {
 
@@ -17,6 +19,8 @@ struct ListenSettings {
   std::string address = "127.0.0.1";
   int port = 7311;
   int max_connections = 64;
+  // false when the config lists `sources:` but has no `listen:` block.
+  bool enabled = true;
 };
 
 struct StorageSettings {
@@ -32,12 +36,24 @@ struct LogSettings {
   std::string level = "info";
 };
 
+// heftd's HTTP API and live page (daemon/http_server.h). Off unless an `http:`
+// block is given; then on unless `enabled: false`.
+struct HttpSettings {
+  bool enabled = false;
+  std::string address = "127.0.0.1";  // this machine only by default
+  int port = 7380;                     // 0 = any free port (tests)
+  std::string token;                   // empty = no operator actions over HTTP
+};
+
 struct Config {
   std::string path;                   // where it was read from
   ListenSettings listen;
   StorageSettings storage;
   LogSettings log;
+  HttpSettings http;  // the `http:` block
   PlantSettings plant;
+  AlertingSettings alerting;  // the `alerting:` block (io/alerting_loader.h)
+  std::vector<SourceSettings> sources;  // the `sources:` list (io/source_settings.h)
 };
 
 // Loads and validates; on failure *errors holds one line per problem.

@@ -8,6 +8,8 @@
 
 #include "core/monitor/operator_message.h"
 #include "core/monitor/plant.h"
+#include "io/record_format_factory.h"
+#include "io/source_settings.h"
 
 namespace heft {
 namespace {
@@ -40,7 +42,8 @@ struct FileCloser {
 }  // namespace
 
 Status ReplayFeed(const std::string& path, const PlantSettings& settings,
-                  const ReplayCallbacks& callbacks, ReplayResult* result) {
+                  const ReplayCallbacks& callbacks, ReplayResult* result,
+                  const SourceSettings* source) {
   std::unique_ptr<std::FILE, FileCloser> file(path == "-" ? stdin
                                                           : std::fopen(path.c_str(), "rb"));
   if (!file) return Status::Error(path + ": cannot open: " + std::strerror(errno));
@@ -48,6 +51,13 @@ Status ReplayFeed(const std::string& path, const PlantSettings& settings,
   Plant plant(settings);
   ReplayListener listener(callbacks);
   StreamIngest ingest(plant, listener);
+  if (source != nullptr) {
+    std::unique_ptr<RecordFormat> format;
+    if (Status s = MakeRecordFormat(source->format, &format); !s.ok()) {
+      return Status::Error("source " + source->name + ": " + s.message());
+    }
+    ingest.SetFormat(std::move(format), source->max_record_bytes);
+  }
   std::vector<Finding> findings;
   std::vector<char> buffer(kChunkBytes);
   ReplayResult local;
@@ -59,6 +69,10 @@ Status ReplayFeed(const std::string& path, const PlantSettings& settings,
     }
     local.findings += static_cast<std::int64_t>(findings.size());
     findings.clear();
+    for (const LotReport& lot : plant.TakeClosedLots()) {
+      if (callbacks.on_lot) callbacks.on_lot(lot);
+      ++local.lots;
+    }
   };
 
   for (;;) {
@@ -75,6 +89,7 @@ Status ReplayFeed(const std::string& path, const PlantSettings& settings,
     }
   }
   ingest.Finish(listener.clock_ms(), &findings);
+  plant.CloseAllLots(true);
   deliver();
   local.counters = ingest.counters();
   local.lines = static_cast<std::int64_t>(plant.line_count());

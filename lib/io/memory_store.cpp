@@ -74,4 +74,23 @@ Status MemoryStore::PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) 
   return Status::Ok();
 }
 
+Status MemoryStore::WriteLots(const std::vector<LotRow>& lots) {
+  if (Status s = CheckFault(); !s.ok()) return s;
+  lots_.insert(lots_.end(), lots.begin(), lots.end());
+  return Status::Ok();
+}
+
+Status MemoryStore::QueryLots(const LotQuery& query, std::vector<LotRow>* out) {
+  out->clear();
+  for (const LotRow& row : lots_) {
+    const LotReport& lot = row.lot;
+    if (query.line && lot.line != *query.line) continue;
+    if (query.since_ms && lot.figures.last_time_ms < *query.since_ms) continue;
+    if (query.until_ms && lot.figures.first_time_ms >= *query.until_ms) continue;
+    out->push_back(row);
+    if (query.limit > 0 && out->size() >= query.limit) break;
+  }
+  return Status::Ok();
+}
+
 }  // namespace heft

@@ -22,8 +22,10 @@ class MemoryStore : public Store {
   // An empty `line` counts the samples of all lines.
   Status CountSamples(const std::string& line, std::int64_t* count) override;
   Status PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) override;
+  Status WriteLots(const std::vector<LotRow>& lots) override;
+  Status QueryLots(const LotQuery& query, std::vector<LotRow>* out) override;
 
-  // The next `count` write calls (UpsertLines, WriteBatch, PruneSamples) fail
+  // The next `count` write calls (UpsertLines, WriteBatch, PruneSamples, WriteLots) fail
   // with `reason` and change nothing. Reads are unaffected.
   void FailNextWrites(int count, std::string reason);
 
@@ -31,6 +33,7 @@ class MemoryStore : public Store {
   const std::vector<LineRow>& lines() const { return lines_; }
   const std::vector<EventRow>& events() const { return events_; }
   const std::vector<SampleRow>& samples() const { return samples_; }
+  const std::vector<LotRow>& lots() const { return lots_; }
   // Write calls attempted / refused by FailNextWrites.
   int write_calls() const { return write_calls_; }
   int failed_writes() const { return failed_writes_; }
@@ -42,6 +45,7 @@ class MemoryStore : public Store {
   std::vector<LineRow> lines_;
   std::vector<EventRow> events_;
   std::vector<SampleRow> samples_;
+  std::vector<LotRow> lots_;
   int fail_remaining_ = 0;
   std::string fail_reason_;
   int write_calls_ = 0;

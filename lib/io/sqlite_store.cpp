@@ -18,6 +18,8 @@
 
 #include <fmt/core.h>
 
+#include "io/alarm_schema.h"
+
 namespace heft {
 namespace {
 
@@ -83,6 +85,72 @@ CREATE TABLE meta (
 );
 INSERT INTO meta(key, value) VALUES ('created_by', 'heft');
 )sql"},
+    // Version 3: closed lots of the net-content compliance accounting (one row
+    // per lot) and the verdict under each packer's rule (lot_verdicts.lot =
+    // lots.id). Figures are the packer's own control, not a legal check.
+    {3, R"sql(
+CREATE TABLE lots (
+  id                    INTEGER PRIMARY KEY,
+  line                  TEXT NOT NULL,
+  seq                   INTEGER NOT NULL,
+  lot_id                TEXT NOT NULL,
+  boundary              TEXT NOT NULL,
+  partial               INTEGER NOT NULL CHECK (partial IN (0, 1)),
+  opened_ms             INTEGER NOT NULL,
+  first_index           INTEGER NOT NULL,
+  last_index            INTEGER NOT NULL,
+  first_ms              INTEGER NOT NULL,
+  last_ms               INTEGER NOT NULL,
+  count                 INTEGER NOT NULL,
+  seen                  INTEGER NOT NULL,
+  mean_g                REAL NOT NULL,
+  s_g                   REAL NOT NULL,
+  short_sigma_g         REAL NOT NULL,
+  min_g                 REAL NOT NULL,
+  max_g                 REAL NOT NULL,
+  t1_count              INTEGER NOT NULL,
+  t2_count              INTEGER NOT NULL,
+  below_nominal         INTEGER NOT NULL,
+  gross                 INTEGER NOT NULL,
+  rejects               INTEGER NOT NULL,
+  rejects_below_t1      INTEGER NOT NULL,
+  errors                INTEGER NOT NULL,
+  invalid               INTEGER NOT NULL,
+  giveaway_g            REAL NOT NULL,
+  giveaway_money        REAL NOT NULL,
+  cost_per_kg           REAL NOT NULL,
+  nominal_g             REAL NOT NULL,
+  tne_g                 REAL NOT NULL,
+  t1_g                  REAL NOT NULL,
+  t2_g                  REAL,
+  rules                 TEXT NOT NULL,
+  safe_target_g         REAL,
+  safe_binding_rule     TEXT,
+  safe_sigma_g          REAL,
+  packs_per_hour        REAL,
+  saving_per_pack_g     REAL,
+  saving_per_hour_g     REAL,
+  saving_per_year_kg    REAL,
+  saving_per_year_money REAL,
+  raise_needed          INTEGER,
+  advice                TEXT,
+  source                TEXT NOT NULL DEFAULT '',
+  recorded_ms           INTEGER NOT NULL
+);
+CREATE INDEX lots_line_last ON lots(line, last_ms);
+CREATE TABLE lot_verdicts (
+  lot    INTEGER NOT NULL REFERENCES lots(id) ON DELETE CASCADE,
+  rule   TEXT NOT NULL,
+  state  TEXT NOT NULL CHECK (state IN ('pass', 'fail', 'not-evaluated')),
+  margin REAL NOT NULL,
+  unit   TEXT NOT NULL,
+  note   TEXT NOT NULL DEFAULT ''
+);
+CREATE INDEX lot_verdicts_lot ON lot_verdicts(lot);
+)sql"},
+    // Version 4: the alarm lifecycle — transitions, the delivery outbox,
+    // operator requests and each alarm's current state (io/alarm_schema.h).
+    {4, kAlarmSchemaSql},
 };
 static_assert(std::size(kMigrations) == SqliteStore::kSchemaVersion,
               "one migration per schema version");
@@ -615,6 +683,225 @@ Status SqliteStore::PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) 
   }
   // Hand the freed pages back to the file system (auto_vacuum = INCREMENTAL).
   return impl_->Exec("PRAGMA incremental_vacuum", fmt::format("{}: incremental vacuum", kOp));
+}
+
+namespace {
+// Column list of the lots table in the order WriteLots binds and QueryLots reads.
+constexpr const char* kLotColumns =
+    "line, seq, lot_id, boundary, partial, opened_ms, first_index, last_index, first_ms, "
+    "last_ms, count, seen, mean_g, s_g, short_sigma_g, min_g, max_g, t1_count, t2_count, "
+    "below_nominal, gross, rejects, rejects_below_t1, errors, invalid, giveaway_g, "
+    "giveaway_money, cost_per_kg, nominal_g, tne_g, t1_g, t2_g, rules, safe_target_g, "
+    "safe_binding_rule, safe_sigma_g, packs_per_hour, saving_per_pack_g, saving_per_hour_g, "
+    "saving_per_year_kg, saving_per_year_money, raise_needed, advice, source, recorded_ms";
+constexpr int kLotColumnCount = 45;
+}  // namespace
+
+Status SqliteStore::WriteLots(const std::vector<LotRow>& lots) {
+  constexpr std::string_view kOp = "writing lots";
+  if (Status s = impl_->RequireWritable(kOp); !s.ok()) return s;
+  if (lots.empty()) return Status::Ok();
+  std::string placeholders;
+  for (int i = 1; i <= kLotColumnCount; ++i) {
+    placeholders += fmt::format("{}?{}", i > 1 ? ", " : "", i);
+  }
+  sqlite3_stmt* lot_stmt = nullptr;
+  sqlite3_stmt* verdict_stmt = nullptr;
+  if (Status s = impl_->Prepare(
+          fmt::format("INSERT INTO lots({}) VALUES ({})", kLotColumns, placeholders), &lot_stmt);
+      !s.ok()) {
+    return s;
+  }
+  if (Status s = impl_->Prepare(
+          "INSERT INTO lot_verdicts(lot, rule, state, margin, unit, note) "
+          "VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
+          &verdict_stmt);
+      !s.ok()) {
+    return s;
+  }
+  Transaction txn(*impl_);
+  if (Status s = txn.Begin(kOp); !s.ok()) return s;
+  for (std::size_t i = 0; i < lots.size(); ++i) {
+    const LotRow& row = lots[i];
+    const LotReport& lot = row.lot;
+    const comply::LotFigures& f = lot.figures;
+    const SafeTargetAdvice* a = lot.advice ? &*lot.advice : nullptr;
+    auto opt = [&](double SafeTargetAdvice::*member) -> std::optional<double> {
+      if (a == nullptr) return std::nullopt;
+      return a->*member;
+    };
+    {
+      StatementUse use(lot_stmt);
+      sqlite3_stmt* st = lot_stmt;
+      int rc = BindText(st, 1, lot.line) | sqlite3_bind_int64(st, 2, lot.seq) |
+               BindText(st, 3, lot.lot_id) | BindText(st, 4, lot.boundary) |
+               sqlite3_bind_int(st, 5, lot.partial ? 1 : 0) |
+               sqlite3_bind_int64(st, 6, lot.opened_ms) |
+               sqlite3_bind_int64(st, 7, f.first_index) |
+               sqlite3_bind_int64(st, 8, f.last_index) |
+               sqlite3_bind_int64(st, 9, f.first_time_ms) |
+               sqlite3_bind_int64(st, 10, f.last_time_ms) | sqlite3_bind_int64(st, 11, f.count) |
+               sqlite3_bind_int64(st, 12, f.seen) | sqlite3_bind_double(st, 13, f.mean_g) |
+               sqlite3_bind_double(st, 14, f.s_g) |
+               sqlite3_bind_double(st, 15, f.short_term_sigma_g) |
+               sqlite3_bind_double(st, 16, f.min_g) | sqlite3_bind_double(st, 17, f.max_g) |
+               sqlite3_bind_int64(st, 18, f.t1_count) | sqlite3_bind_int64(st, 19, f.t2_count) |
+               sqlite3_bind_int64(st, 20, f.below_nominal) |
+               sqlite3_bind_int64(st, 21, f.gross) | sqlite3_bind_int64(st, 22, f.rejected) |
+               sqlite3_bind_int64(st, 23, f.rejected_below_t1) |
+               sqlite3_bind_int64(st, 24, f.errors) | sqlite3_bind_int64(st, 25, f.invalid) |
+               sqlite3_bind_double(st, 26, f.giveaway_g) |
+               sqlite3_bind_double(st, 27, f.giveaway_money) |
+               sqlite3_bind_double(st, 28, lot.cost_per_kg) |
+               sqlite3_bind_double(st, 29, lot.nominal_g) |
+               sqlite3_bind_double(st, 30, lot.tne_g) | sqlite3_bind_double(st, 31, lot.t1_g) |
+               BindOptDouble(st, 32, lot.t2_g) | BindText(st, 33, lot.rules_id) |
+               BindOptDouble(st, 34, opt(&SafeTargetAdvice::target_g)) |
+               (a ? BindText(st, 35, a->binding_rule) : sqlite3_bind_null(st, 35)) |
+               BindOptDouble(st, 36, opt(&SafeTargetAdvice::sigma_g)) |
+               BindOptDouble(st, 37, opt(&SafeTargetAdvice::packs_per_hour)) |
+               BindOptDouble(st, 38, opt(&SafeTargetAdvice::saving_per_pack_g)) |
+               BindOptDouble(st, 39, opt(&SafeTargetAdvice::saving_per_hour_g)) |
+               BindOptDouble(st, 40, opt(&SafeTargetAdvice::saving_per_year_kg)) |
+               BindOptDouble(st, 41, opt(&SafeTargetAdvice::saving_per_year_money)) |
+               (a ? sqlite3_bind_int(st, 42, a->raise_needed ? 1 : 0)
+                  : sqlite3_bind_null(st, 42)) |
+               (a ? BindText(st, 43, a->text) : sqlite3_bind_null(st, 43)) |
+               BindText(st, 44, row.source) | sqlite3_bind_int64(st, 45, row.recorded_ms);
+      if (rc != SQLITE_OK || sqlite3_step(st) != SQLITE_DONE) {
+        return impl_->Error(fmt::format("{}: lot {} of {} ({})", kOp, i + 1, lots.size(),
+                                        lot.lot_id));
+      }
+    }
+    const std::int64_t lot_rowid = sqlite3_last_insert_rowid(impl_->db);
+    for (const LotVerdict& v : lot.verdicts) {
+      StatementUse use(verdict_stmt);
+      int rc = sqlite3_bind_int64(verdict_stmt, 1, lot_rowid) |
+               BindText(verdict_stmt, 2, v.rule_id) | BindText(verdict_stmt, 3, v.state) |
+               sqlite3_bind_double(verdict_stmt, 4, v.margin) | BindText(verdict_stmt, 5, v.unit) |
+               BindText(verdict_stmt, 6, v.note);
+      if (rc != SQLITE_OK || sqlite3_step(verdict_stmt) != SQLITE_DONE) {
+        return impl_->Error(
+            fmt::format("{}: verdict '{}' of lot {} ({})", kOp, v.rule_id, i + 1, lot.lot_id));
+      }
+    }
+  }
+  return txn.Commit(kOp);
+}
+
+Status SqliteStore::QueryLots(const LotQuery& query, std::vector<LotRow>* out) {
+  constexpr std::string_view kOp = "querying lots";
+  out->clear();
+  std::string sql = fmt::format("SELECT id, {} FROM lots WHERE 1", kLotColumns);
+  if (query.line) sql += " AND line = ?1";
+  if (query.since_ms) sql += " AND last_ms >= ?2";
+  if (query.until_ms) sql += " AND first_ms < ?3";
+  sql += " ORDER BY id";
+  if (query.limit > 0) sql += " LIMIT ?4";
+  sqlite3_stmt* stmt = nullptr;
+  sqlite3_stmt* verdict_stmt = nullptr;
+  if (Status s = impl_->Prepare(sql, &stmt); !s.ok()) return s;
+  if (Status s = impl_->Prepare(
+          "SELECT rule, state, margin, unit, note FROM lot_verdicts WHERE lot = ?1 ORDER BY rowid",
+          &verdict_stmt);
+      !s.ok()) {
+    return s;
+  }
+  std::vector<std::int64_t> ids;
+  {
+    StatementUse use(stmt);
+    int rc = SQLITE_OK;
+    if (query.line) rc |= BindText(stmt, 1, *query.line);
+    if (query.since_ms) rc |= sqlite3_bind_int64(stmt, 2, *query.since_ms);
+    if (query.until_ms) rc |= sqlite3_bind_int64(stmt, 3, *query.until_ms);
+    if (query.limit > 0) {
+      const auto max = static_cast<std::size_t>(std::numeric_limits<std::int64_t>::max());
+      rc |= sqlite3_bind_int64(stmt, 4, static_cast<std::int64_t>(std::min(query.limit, max)));
+    }
+    if (rc != SQLITE_OK) return impl_->Error(kOp);
+    while (true) {
+      rc = sqlite3_step(stmt);
+      if (rc == SQLITE_DONE) break;
+      if (rc != SQLITE_ROW) return impl_->Error(kOp);
+      ids.push_back(sqlite3_column_int64(stmt, 0));
+      LotRow row;
+      LotReport& lot = row.lot;
+      comply::LotFigures& f = lot.figures;
+      auto i64 = [&](int col) { return sqlite3_column_int64(stmt, col); };
+      auto dbl = [&](int col) { return sqlite3_column_double(stmt, col); };
+      lot.line = std::string(ColumnText(stmt, 1));
+      lot.seq = i64(2);
+      lot.lot_id = std::string(ColumnText(stmt, 3));
+      lot.boundary = std::string(ColumnText(stmt, 4));
+      lot.partial = i64(5) != 0;
+      lot.opened_ms = i64(6);
+      f.first_index = i64(7);
+      f.last_index = i64(8);
+      f.first_time_ms = i64(9);
+      f.last_time_ms = i64(10);
+      f.count = i64(11);
+      f.seen = i64(12);
+      f.mean_g = dbl(13);
+      f.s_g = dbl(14);
+      f.short_term_sigma_g = dbl(15);
+      f.min_g = dbl(16);
+      f.max_g = dbl(17);
+      f.t1_count = i64(18);
+      f.t2_count = i64(19);
+      f.below_nominal = i64(20);
+      f.gross = i64(21);
+      f.rejected = i64(22);
+      f.rejected_below_t1 = i64(23);
+      f.errors = i64(24);
+      f.invalid = i64(25);
+      f.giveaway_g = dbl(26);
+      f.giveaway_money = dbl(27);
+      lot.cost_per_kg = dbl(28);
+      lot.nominal_g = dbl(29);
+      lot.tne_g = dbl(30);
+      lot.t1_g = dbl(31);
+      lot.t2_g = ColumnOptDouble(stmt, 32);
+      lot.rules_id = std::string(ColumnText(stmt, 33));
+      if (f.count > 0) {
+        f.t1_fraction = static_cast<double>(f.t1_count) / static_cast<double>(f.count);
+        f.giveaway_per_pack_g = f.giveaway_g / static_cast<double>(f.count);
+      }
+      if (const auto target = ColumnOptDouble(stmt, 34)) {
+        SafeTargetAdvice a;
+        a.target_g = *target;
+        a.binding_rule = std::string(ColumnText(stmt, 35));
+        a.sigma_g = ColumnOptDouble(stmt, 36).value_or(0.0);
+        a.packs_per_hour = ColumnOptDouble(stmt, 37).value_or(0.0);
+        a.saving_per_pack_g = ColumnOptDouble(stmt, 38).value_or(0.0);
+        a.saving_per_hour_g = ColumnOptDouble(stmt, 39).value_or(0.0);
+        a.saving_per_year_kg = ColumnOptDouble(stmt, 40).value_or(0.0);
+        a.saving_per_year_money = ColumnOptDouble(stmt, 41).value_or(0.0);
+        a.raise_needed = ColumnOptInt(stmt, 42).value_or(0) != 0;
+        a.text = std::string(ColumnText(stmt, 43));
+        lot.advice = std::move(a);
+      }
+      row.source = std::string(ColumnText(stmt, 44));
+      row.recorded_ms = i64(45);
+      out->push_back(std::move(row));
+    }
+  }
+  for (std::size_t i = 0; i < ids.size(); ++i) {
+    StatementUse use(verdict_stmt);
+    if (sqlite3_bind_int64(verdict_stmt, 1, ids[i]) != SQLITE_OK) return impl_->Error(kOp);
+    while (true) {
+      const int rc = sqlite3_step(verdict_stmt);
+      if (rc == SQLITE_DONE) break;
+      if (rc != SQLITE_ROW) return impl_->Error(kOp);
+      LotVerdict v;
+      v.rule_id = std::string(ColumnText(verdict_stmt, 0));
+      v.state = std::string(ColumnText(verdict_stmt, 1));
+      v.margin = sqlite3_column_double(verdict_stmt, 2);
+      v.unit = std::string(ColumnText(verdict_stmt, 3));
+      v.note = std::string(ColumnText(verdict_stmt, 4));
+      (*out)[i].lot.verdicts.push_back(std::move(v));
+    }
+  }
+  return Status::Ok();
 }
 
 }  // namespace heft

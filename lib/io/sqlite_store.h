@@ -14,7 +14,7 @@ namespace heft {
 
 class SqliteStore : public Store {
  public:
-  static constexpr int kSchemaVersion = 2;
+  static constexpr int kSchemaVersion = 4;
 
   enum class Mode { kReadWrite, kReadOnly };
 
@@ -32,6 +32,8 @@ class SqliteStore : public Store {
   Status QueryEvents(const EventQuery& query, std::vector<EventRow>* out) override;
   Status CountSamples(const std::string& line, std::int64_t* count) override;
   Status PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) override;
+  Status WriteLots(const std::vector<LotRow>& lots) override;
+  Status QueryLots(const LotQuery& query, std::vector<LotRow>* out) override;
 
   int schema_version() const;
 

@@ -14,6 +14,7 @@
 #include "core/model/finding.h"
 #include "core/model/pack.h"
 #include "core/model/status.h"
+#include "core/monitor/lot_report.h"
 
 namespace heft {
 
@@ -50,6 +51,20 @@ struct EventQuery {
   std::size_t limit = 0;                 // 0 = no limit
 };
 
+// A closed lot as stored (tables lots and lot_verdicts).
+struct LotRow {
+  LotReport lot;
+  std::string source;            // who closed it, e.g. "heftd" or "heftd:shutdown"
+  std::int64_t recorded_ms = 0;  // when heft stored it (wall clock of the writer)
+};
+
+struct LotQuery {
+  std::optional<std::string> line;
+  std::optional<std::int64_t> since_ms;  // lots whose last pack is at or after this time
+  std::optional<std::int64_t> until_ms;  // lots whose first pack is before this time
+  std::size_t limit = 0;                 // 0 = no limit
+};
+
 class Store {
  public:
   virtual ~Store() = default;
@@ -63,6 +78,10 @@ class Store {
   virtual Status CountSamples(const std::string& line, std::int64_t* count) = 0;
   // Deletes raw samples with time before cutoff_ms (retention). Events are kept.
   virtual Status PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) = 0;
+  // Closed lots with their verdicts in one transaction: all or nothing.
+  virtual Status WriteLots(const std::vector<LotRow>& lots) = 0;
+  // Lots in the order they were stored, each with its verdicts.
+  virtual Status QueryLots(const LotQuery& query, std::vector<LotRow>* out) = 0;
 };
 
 }  // namespace heft

@@ -10,6 +10,7 @@ import csv
 import io
 import json
 import os
+import re
 import shutil
 import sqlite3
 import subprocess
@@ -79,6 +80,9 @@ def main():
     parser.add_argument("--source-dir", required=True)
     args = parser.parse_args()
     heft = os.path.join(args.build_dir, "tools", "heft")
+    # The schema version this heft writes, as declared in the store's header.
+    with open(os.path.join(args.source_dir, "lib", "io", "sqlite_store.h")) as header:
+        current_version = int(re.search(r"kSchemaVersion = (\d+);", header.read()).group(1))
     check(os.access(heft, os.X_OK), f"heft is built at {heft}")
 
     tmp = tempfile.mkdtemp(prefix="heft-events-test-")
@@ -164,7 +168,8 @@ def main():
         conn.commit()
         conn.close()
         fails(["--db", newer],
-              f"{newer}: database schema version 99 is newer than this heft (2); upgrade heft",
+              f"{newer}: database schema version 99 is newer than this heft ({current_version}); "
+              "upgrade heft",
               "newer schema")
     except Failure:
         return 1

@@ -414,3 +414,270 @@ TEST_CASE("config: the shipped demo and example files load", "[config]") {
 
 }  // namespace
 }  // namespace heft
+
+namespace heft {
+namespace {
+
+TEST_CASE("config: compliance keys are read, with rule tables loaded once", "[config][lots]") {
+  const Config c = MustLoad(R"(
+defaults:
+  rules: eu-average-quantity
+  cost_per_kg: 1.5
+  lots: {by: shifts, shifts: ["06:00", "14:00", "22:00"], utc_offset_minutes: 60}
+  compliance: {min_packs: 40, mean_warn_probability: 0.1, t2_alarm: false, hold_off_packs: 80}
+  safe_target: {t2_risk: 0.001, confidence: 0.95, t1_share_of_limit: 0.4, hours_per_year: 4000}
+lines:
+  - id: oats-1
+    nominal_g: 500
+    cost_per_kg: 2.4
+  - id: honey-2
+    nominal_g: 340
+    lots: {by: count, packs_per_lot: 5000}
+    rejects_in_lot: true
+  - id: bare-1
+)");
+  const LineSettings& oats = c.plant.lines.at("oats-1");
+  CHECK(oats.cost_per_kg == 2.4);
+  CHECK(oats.lots.boundary == comply::LotBoundary::kShifts);
+  CHECK(oats.lots.shift_start_minutes == std::vector<int>{360, 840, 1320});
+  CHECK(oats.lots.utc_offset_minutes == 60);
+  CHECK(oats.compliance.min_packs == 40);
+  CHECK(oats.compliance.mean_warn_probability == 0.1);
+  CHECK_FALSE(oats.compliance.t2_alarm);
+  CHECK(oats.compliance_hold_off_packs == 80);
+  CHECK(oats.safe_target.tail_probability == 0.001);
+  CHECK(oats.safe_target.mean_confidence == 0.95);
+  CHECK(oats.safe_target.t1_share_of_limit == 0.4);
+  CHECK(oats.safe_target.hours_per_year == 4000);
+  const LineSettings& honey = c.plant.lines.at("honey-2");
+  CHECK(honey.cost_per_kg == 1.5);
+  CHECK(honey.lots.boundary == comply::LotBoundary::kCount);
+  CHECK(honey.lots.packs_per_lot == 5000);
+  CHECK(honey.rejects_in_lot);
+  // One table, loaded once; every line names it by its resolved path.
+  REQUIRE(c.plant.rule_tables.size() == 1);
+  const auto& [path, table] = *c.plant.rule_tables.begin();
+  CHECK(table->id == "eu-average-quantity");
+  CHECK(oats.rules == path);
+  CHECK(honey.rules == path);
+  CHECK(c.plant.defaults.rules == path);
+}
+
+TEST_CASE("config: lines with a nominal get the shipped EU table by default", "[config][lots]") {
+  const Config c = MustLoad("lines:\n  - {id: oats-1, nominal_g: 500}\n  - {id: x, rules: none}\n");
+  REQUIRE(c.plant.rule_tables.size() == 1);
+  CHECK(c.plant.rule_tables.begin()->second->id == "eu-average-quantity");
+  CHECK(c.plant.lines.at("oats-1").lots.boundary == comply::LotBoundary::kHour);
+  CHECK(c.plant.lines.at("x").rules == "none");
+}
+
+TEST_CASE("config: bad compliance keys say where and why", "[config][lots]") {
+  Lines e = Errors("lines:\n  - id: oats-1\n    nominal_g: 500\n    lots: {by: weekly}\n");
+  REQUIRE(e.size() == 1);
+  CHECK(e[0].rfind("t.yaml:4:16: lines[0].lots.by: must be one of count, hour, shifts, manual",
+                   0) == 0);
+
+  e = Errors("lines:\n  - id: oats-1\n    nominal_g: 500\n    lots: {by: count}\n");
+  REQUIRE(e.size() == 1);
+  CHECK(e[0].rfind("t.yaml:4:11: lines[0].lots: lot policy: count lots need packs_per_lot", 0) ==
+        0);
+
+  e = Errors("defaults:\n  lots:\n    by: shifts\n    shifts: [\"14:00\", \"06:00\"]\n");
+  REQUIRE(e.size() == 1);
+  CHECK(e[0].find("defaults.lots.shifts[1]: shift starts must be in increasing order") !=
+        std::string::npos);
+
+  e = Errors("defaults:\n  lots: {by: shifts, shifts: [\"6h\"]}\n");
+  REQUIRE(e.size() == 1);
+  CHECK(e[0].find("defaults.lots.shifts[0]: expected a time of day like \"06:00\"") !=
+        std::string::npos);
+
+  e = Errors("lines:\n  - id: oats-1\n    nominal_g: 500\n    rules: no-such-table.yaml\n");
+  REQUIRE(e.size() == 1);
+  CHECK(e[0].rfind("t.yaml:4:12: lines[0].rules: rule table \"no-such-table.yaml\" not found", 0) ==
+        0);
+
+  e = Errors("defaults:\n  safe_target: {t2_risk: 0.5, confidence: 1.0}\n  cost_per_kg: -1\n");
+  REQUIRE(e.size() == 3);
+  CHECK(e[0].find("defaults.safe_target.t2_risk: must be between") != std::string::npos);
+  CHECK(e[1].find("defaults.safe_target.confidence: must be at least 0.5 and less than 1") !=
+        std::string::npos);
+  CHECK(e[2].find("defaults.cost_per_kg: must be between 0 and") != std::string::npos);
+
+  e = Errors("defaults:\n  compliance: {mean_warn_probability: 0.6, mean_alarm_probability: 0.5}\n");
+  REQUIRE(e.size() == 1);
+  CHECK(e[0].find("defaults.compliance: warning probabilities must not be above") !=
+        std::string::npos);
+
+  e = Errors("defaults:\n  compliance: {hold_of_packs: 3}\n");
+  REQUIRE(e.size() == 1);
+  CHECK(e[0].find("defaults.compliance.hold_of_packs: unknown key") != std::string::npos);
+
+  // A nominal the table does not cover (the EU table ends at 10 kg).
+  e = Errors("lines:\n  - {id: big-1, nominal_g: 60000}\n");
+  REQUIRE(e.size() == 1);
+  CHECK(e[0].find("lines[0]: nominal 60000 g and rule table eu-average-quantity") !=
+        std::string::npos);
+}
+
+}  // namespace
+}  // namespace heft
+
+// --- sources: (io/source_config_loader.h) ---
+namespace heft {
+namespace {
+
+TEST_CASE("config: sources of every type with their formats", "[config][format]") {
+  const Config c = MustLoad(R"(
+sources:
+  - name: gateway-1
+    type: tcp-connect
+    host: 127.0.0.1
+    port: 4001
+    retry_initial_ms: 200
+    retry_max_ms: 5000
+    max_attempts: 0
+    keepalive_s: 20
+    format:
+      type: key_value
+      pair_separator: ";"
+      value_separator: ":"
+      fields: {weight: NET, line: LN}
+  - name: oats-1-scale
+    type: serial
+    device: /dev/ttyUSB0
+    baud: 9600
+    data_bits: 7
+    parity: even
+    stop_bits: 1
+    flow_control: none
+    line_id: oats-1
+    format:
+      type: pattern
+      pattern: '^(?<weight>[-+ .0-9]+) *(?<unit>k?g)$'
+  - name: export
+    type: file-follow
+    path: /var/lib/filler/export.csv
+    poll_ms: 500
+    start_at: beginning
+    max_record_bytes: 8192
+    format:
+      type: delimited
+      delimiter: ";"
+      decimal_comma: true
+      header: names
+      fields: {line: Line, weight: 4, head: "Head"}
+      unit: kg
+      scale: 0.001
+      offset_g: -1.5
+      time_format: epoch_s
+      status: {ok: [OK], rejected: [UNDER, OVER], error: ERR, other: rejected}
+  - name: lab
+    type: tcp-listen
+    port: 0
+    allow: [127.0.0.1, 10.20.0.0/24]
+    max_connections: 4
+  - name: pipe
+    type: stdin
+    format: {type: json_lines}
+)");
+  REQUIRE(c.sources.size() == 5);
+  CHECK(c.listen.enabled == false);  // sources and no listen block: no default listener
+  const SourceSettings& g = c.sources[0];
+  CHECK(g.type == SourceType::kTcpConnect);
+  CHECK(g.format.kind == FormatKind::kKeyValue);
+  CHECK(g.format.pair_separator == ';');
+  CHECK(g.format.field(RecordField::kWeight).name == "NET");
+  const SourceSettings& s = c.sources[1];
+  CHECK(s.data_bits == 7);
+  CHECK(s.parity == SerialParity::kEven);
+  CHECK(s.format.line_id == "oats-1");
+  const SourceSettings& f = c.sources[2];
+  CHECK(f.start_at_end == false);
+  CHECK(f.max_record_bytes == 8192);
+  CHECK(f.format.field(RecordField::kWeight).column == 3);  // config counts columns from 1
+  CHECK(f.format.field(RecordField::kHead).name == "Head");
+  CHECK(f.format.unit == WeightUnit::kKilogram);
+  CHECK(f.format.scale == 0.001);
+  CHECK(f.format.time_format == TimeFormat::kEpochS);
+  CHECK(f.format.status.error == std::vector<std::string>{"ERR"});
+  CHECK(f.format.status.other == PackStatus::kRejected);
+  CHECK(c.sources[3].allow.size() == 2);
+  CHECK(c.sources[4].format.kind == FormatKind::kJsonLines);
+}
+
+TEST_CASE("config: with a listen block, sources add to the default listener",
+          "[config][format]") {
+  const Config c = MustLoad("listen:\n  port: 7400\nsources:\n  - {name: p, type: stdin}\n");
+  CHECK(c.listen.enabled);
+  CHECK(MustLoad("listen:\n  port: 7400\n").listen.enabled);
+}
+
+TEST_CASE("config: source errors name file, line, column and key path, all at once",
+          "[config][format]") {
+  const Lines errors = Errors(R"(sources:
+  - name: a
+    type: serial
+    baud: 9601
+    parity: mark
+    port: 4
+  - name: b
+    type: tcp-connect
+    host: gw
+  - name: a
+    type: stdin
+  - type: carrier-pigeon
+  - name: d
+    type: tcp-listen
+    port: 70000
+    allow: [10.0.0.0/33, nonsense]
+  - name: e
+    type: stdin
+    line_id: oats-1
+    format: {type: delimited, fields: {weight: 0}}
+  - name: f
+    type: stdin
+    format: {type: pattern, pattern: '(?<net>\d+)'}
+  - name: g
+    type: stdin
+    format: {type: delimited, fields: {line: 1}, delimiter: ";;"}
+)");
+  const Lines want = {
+      "t.yaml:2:5: sources[0]: missing required key \"device\"",
+      "t.yaml:4:11: sources[0].baud: 9601 is not a standard rate (e.g. 1200, 2400, 4800, 9600, "
+      "19200, 38400, 57600, 115200)",
+      "t.yaml:5:13: sources[0].parity: must be none, even or odd; got \"mark\"",
+      "t.yaml:6:5: sources[0].port: unknown key for type serial (expected one of: name, type, "
+      "line_id, max_record_bytes, format, device, baud, data_bits, parity, stop_bits, "
+      "flow_control, retry_initial_ms, retry_max_ms)",
+      "t.yaml:7:5: sources[1]: missing required key \"port\"",
+      "t.yaml:10:11: sources[2].name: duplicate source name \"a\" (first at line 2)",
+      "t.yaml:12:11: sources[3].type: must be tcp-listen, tcp-connect, serial, file-follow or "
+      "stdin; got \"carrier-pigeon\"",
+      "t.yaml:15:11: sources[4].port: must be between 0 and 65535, got 70000",
+      "t.yaml:16:12: sources[4].allow: \"10.0.0.0/33\": prefix length must be 0..32",
+      "t.yaml:16:12: sources[4].allow: \"nonsense\" is not an IP address or prefix (e.g. "
+      "10.20.0.0/24)",
+      "t.yaml:20:48: sources[5].format.fields.weight: must be between 1 and 1000, got 0",
+      "t.yaml:23:13: sources[6].format.pattern: group name \"net\" is not a field (line, head, "
+      "weight, time, unit, status)",
+      "t.yaml:26:61: sources[7].format.delimiter: expected one character (or tab, space), got "
+      "the quoted string \";;\"",
+  };
+  CHECK(errors == want);
+}
+
+TEST_CASE("config: the example's sources block loads", "[config][format]") {
+  Config example;
+  std::vector<std::string> errors;
+  const Status status =
+      LoadConfigFile(std::string(HEFT_SOURCE_DIR) + "/config/example.yaml", &example, &errors);
+  INFO(status.message());
+  REQUIRE(status.ok());
+  // The example documents every source type with its format.
+  REQUIRE(example.sources.size() >= 5);
+  CHECK(example.listen.enabled);
+}
+
+}  // namespace
+}  // namespace heft

@@ -439,7 +439,7 @@ TEST_CASE("SqliteStore migrates a version 1 database to version 2", "[store]") {
   }
   {
     auto store = OpenOrFail(path);
-    CHECK(store->schema_version() == 2);
+    CHECK(store->schema_version() == SqliteStore::kSchemaVersion);  // every migration ran
     std::vector<EventRow> out;
     REQUIRE(store->QueryEvents({}, &out).ok());
     REQUIRE(out.size() == 1);
@@ -460,7 +460,7 @@ TEST_CASE("SqliteStore migrates a version 1 database to version 2", "[store]") {
     CHECK(out.size() == 2);
   }
   RawDb raw(path);
-  CHECK(raw.Int("PRAGMA user_version") == 2);
+  CHECK(raw.Int("PRAGMA user_version") == SqliteStore::kSchemaVersion);
   CHECK(raw.Int("SELECT count(*) FROM sqlite_master WHERE type = 'index' AND name = "
                 "'events_line_at' AND tbl_name = 'events'") == 1);
   CHECK(raw.Int("SELECT count(*) FROM sqlite_master WHERE type = 'index' AND name = "
@@ -478,7 +478,8 @@ TEST_CASE("SqliteStore::CreateAtVersion refuses unknown versions", "[store]") {
   CHECK_FALSE(SqliteStore::CreateAtVersion(dir.File("a.db"), 0).ok());
   const Status s = SqliteStore::CreateAtVersion(dir.File("b.db"), SqliteStore::kSchemaVersion + 1);
   REQUIRE_FALSE(s.ok());
-  CHECK(s.message().find("no schema version 3") != std::string::npos);
+  CHECK(s.message().find("no schema version " + std::to_string(SqliteStore::kSchemaVersion + 1)) !=
+        std::string::npos);
 }
 
 TEST_CASE("SqliteStore refuses a database from a newer heft", "[store]") {
@@ -490,7 +491,8 @@ TEST_CASE("SqliteStore refuses a database from a newer heft", "[store]") {
     raw.Exec("PRAGMA user_version = 99");
   }
   const std::string expected =
-      path + ": database schema version 99 is newer than this heft (2); upgrade heft";
+      path + ": database schema version 99 is newer than this heft (" +
+      std::to_string(SqliteStore::kSchemaVersion) + "); upgrade heft";
   for (auto mode : {SqliteStore::Mode::kReadWrite, SqliteStore::Mode::kReadOnly}) {
     std::unique_ptr<SqliteStore> store;
     const Status s = SqliteStore::Open(path, mode, &store);
@@ -624,4 +626,198 @@ TEST_CASE("PruneSamples deletes old samples in batches and keeps events", "[stor
   CHECK(raw.Int("PRAGMA freelist_count") == 0);
 }
 
+}  // namespace heft
+
+namespace heft {
+namespace {
+
+LotRow SampleLot(const std::string& line, std::int64_t first_ms, bool with_advice) {
+  LotRow row;
+  LotReport& lot = row.lot;
+  lot.line = line;
+  lot.seq = 3;
+  lot.lot_id = line + " 2026-03-02T06:00Z";
+  lot.boundary = "hour";
+  lot.partial = !with_advice;
+  lot.opened_ms = first_ms - 500;
+  lot.rules_id = "eu-average-quantity";
+  lot.nominal_g = 500.0;
+  lot.tne_g = 15.0;
+  lot.t1_g = 485.0;
+  lot.t2_g = with_advice ? std::optional<double>(470.0) : std::nullopt;
+  lot.cost_per_kg = 2.4;
+  comply::LotFigures& f = lot.figures;
+  f.count = 3590;
+  f.seen = 3600;
+  f.rejected = 4;
+  f.gross = 5;
+  f.errors = 1;
+  f.mean_g = 503.25;
+  f.s_g = 1.75;
+  f.short_term_sigma_g = 1.5;
+  f.min_g = 497.5;
+  f.max_g = 509.0;
+  f.t1_count = 0;
+  f.t2_count = 0;
+  f.below_nominal = 160;
+  f.rejected_below_t1 = 2;
+  f.giveaway_g = 3.25 * 3590;
+  f.giveaway_money = f.giveaway_g / 1000.0 * 2.4;
+  f.first_time_ms = first_ms;
+  f.last_time_ms = first_ms + 3'599'000;
+  f.first_index = 7;
+  f.last_index = 3606;
+  lot.verdicts = {{"mean", "pass", 3.25, "g", "mean 503.250 g vs nominal 500.000 g"},
+                  {"t1_share", "pass", 89.0, "packs", "0 below T1"},
+                  {"no_t2", "not-evaluated", 0.0, "g", "the table defines no T2 limit"}};
+  if (with_advice) {
+    SafeTargetAdvice a;
+    a.target_g = 500.08;
+    a.binding_rule = "mean";
+    a.sigma_g = 1.75;
+    a.packs_per_hour = 3600.0;
+    a.saving_per_pack_g = 3.17;
+    a.saving_per_hour_g = 11412.0;
+    a.saving_per_year_kg = 22824.0;
+    a.saving_per_year_money = 54777.6;
+    a.text = "Advice only, with a comma, and \"quotes\".";
+    lot.advice = a;
+  }
+  row.source = "heftd";
+  row.recorded_ms = first_ms + 3'600'100;
+  return row;
+}
+
+void CheckSameLot(const LotRow& a, const LotRow& b) {
+  CHECK(a.lot.line == b.lot.line);
+  CHECK(a.lot.seq == b.lot.seq);
+  CHECK(a.lot.lot_id == b.lot.lot_id);
+  CHECK(a.lot.boundary == b.lot.boundary);
+  CHECK(a.lot.partial == b.lot.partial);
+  CHECK(a.lot.opened_ms == b.lot.opened_ms);
+  CHECK(a.lot.rules_id == b.lot.rules_id);
+  CHECK(a.lot.nominal_g == b.lot.nominal_g);
+  CHECK(a.lot.tne_g == b.lot.tne_g);
+  CHECK(a.lot.t1_g == b.lot.t1_g);
+  CHECK(a.lot.t2_g == b.lot.t2_g);
+  CHECK(a.lot.cost_per_kg == b.lot.cost_per_kg);
+  const comply::LotFigures& x = a.lot.figures;
+  const comply::LotFigures& y = b.lot.figures;
+  CHECK(x.count == y.count);
+  CHECK(x.seen == y.seen);
+  CHECK(x.rejected == y.rejected);
+  CHECK(x.gross == y.gross);
+  CHECK(x.errors == y.errors);
+  CHECK(x.mean_g == y.mean_g);
+  CHECK(x.s_g == y.s_g);
+  CHECK(x.short_term_sigma_g == y.short_term_sigma_g);
+  CHECK(x.min_g == y.min_g);
+  CHECK(x.max_g == y.max_g);
+  CHECK(x.t1_count == y.t1_count);
+  CHECK(x.t2_count == y.t2_count);
+  CHECK(x.below_nominal == y.below_nominal);
+  CHECK(x.rejected_below_t1 == y.rejected_below_t1);
+  CHECK(x.giveaway_g == y.giveaway_g);
+  CHECK(x.giveaway_money == y.giveaway_money);
+  CHECK(x.first_time_ms == y.first_time_ms);
+  CHECK(x.last_time_ms == y.last_time_ms);
+  CHECK(x.first_index == y.first_index);
+  CHECK(x.last_index == y.last_index);
+  REQUIRE(a.lot.verdicts.size() == b.lot.verdicts.size());
+  for (std::size_t i = 0; i < a.lot.verdicts.size(); ++i) {
+    CHECK(a.lot.verdicts[i].rule_id == b.lot.verdicts[i].rule_id);
+    CHECK(a.lot.verdicts[i].state == b.lot.verdicts[i].state);
+    CHECK(a.lot.verdicts[i].margin == b.lot.verdicts[i].margin);
+    CHECK(a.lot.verdicts[i].unit == b.lot.verdicts[i].unit);
+    CHECK(a.lot.verdicts[i].note == b.lot.verdicts[i].note);
+  }
+  REQUIRE(a.lot.advice.has_value() == b.lot.advice.has_value());
+  if (a.lot.advice) {
+    CHECK(a.lot.advice->target_g == b.lot.advice->target_g);
+    CHECK(a.lot.advice->binding_rule == b.lot.advice->binding_rule);
+    CHECK(a.lot.advice->saving_per_year_kg == b.lot.advice->saving_per_year_kg);
+    CHECK(a.lot.advice->saving_per_year_money == b.lot.advice->saving_per_year_money);
+    CHECK(a.lot.advice->raise_needed == b.lot.advice->raise_needed);
+    CHECK(a.lot.advice->text == b.lot.advice->text);
+  }
+  CHECK(a.source == b.source);
+  CHECK(a.recorded_ms == b.recorded_ms);
+}
+
+TEST_CASE("SqliteStore round-trips lots with their verdicts; filters match MemoryStore",
+          "[store][lots]") {
+  TempDir dir;
+  auto store = OpenOrFail(dir.File("heft.db"));
+  MemoryStore memory;
+  const std::int64_t six = 1772431200000;
+  const std::vector<LotRow> rows = {SampleLot("oats-1", six, true),
+                                    SampleLot("honey-2", six, false),
+                                    SampleLot("oats-1", six + 3'600'000, true)};
+  REQUIRE(store->WriteLots(rows).ok());
+  REQUIRE(memory.WriteLots(rows).ok());
+  std::vector<LotRow> out;
+  REQUIRE(store->QueryLots({}, &out).ok());
+  REQUIRE(out.size() == 3);
+  for (std::size_t i = 0; i < 3; ++i) CheckSameLot(out[i], rows[i]);
+
+  std::vector<LotQuery> queries(4);
+  queries[0].line = "oats-1";
+  queries[1].since_ms = six + 3'600'000;  // the first hour's lots end at 06:59:59
+  queries[2].until_ms = six + 1;
+  queries[3].limit = 2;
+  const std::vector<std::size_t> expected = {2, 1, 2, 2};
+  for (std::size_t q = 0; q < queries.size(); ++q) {
+    std::vector<LotRow> a, b;
+    REQUIRE(store->QueryLots(queries[q], &a).ok());
+    REQUIRE(memory.QueryLots(queries[q], &b).ok());
+    CHECK(a.size() == expected[q]);
+    REQUIRE(a.size() == b.size());
+    for (std::size_t i = 0; i < a.size(); ++i) CheckSameLot(a[i], b[i]);
+  }
+  // A read-only reader sees them too.
+  auto reader = OpenOrFail(dir.File("heft.db"), SqliteStore::Mode::kReadOnly);
+  REQUIRE(reader->QueryLots({}, &out).ok());
+  CHECK(out.size() == 3);
+  CHECK_FALSE(reader->WriteLots(rows).ok());
+  // Failed writes in the memory store change nothing.
+  memory.FailNextWrites(1, "disk full");
+  CHECK_FALSE(memory.WriteLots(rows).ok());
+  CHECK(memory.lots().size() == 3);
+}
+
+TEST_CASE("SqliteStore migrates a version 2 database to version 3 (lots)", "[store][lots]") {
+  TempDir dir;
+  const std::string path = dir.File("heft.db");
+  REQUIRE(SqliteStore::CreateAtVersion(path, 2).ok());
+  {
+    RawDb raw(path);
+    CHECK(raw.Int("PRAGMA user_version") == 2);
+    CHECK(raw.Int("SELECT count(*) FROM sqlite_master WHERE name = 'lots'") == 0);
+    raw.Exec(
+        "INSERT INTO samples(line, source, record_index, time_ms, grams, head, status) VALUES "
+        "('oats-1', 'file', 900, 1772431200000, 501.5, 4, 0)");
+  }
+  {
+    auto store = OpenOrFail(path);
+    CHECK(store->schema_version() >= 3);
+    std::int64_t count = 0;
+    REQUIRE(store->CountSamples("oats-1", &count).ok());
+    CHECK(count == 1);
+    REQUIRE(store->WriteLots({SampleLot("oats-1", 1772431200000, true)}).ok());
+    std::vector<LotRow> out;
+    REQUIRE(store->QueryLots({}, &out).ok());
+    REQUIRE(out.size() == 1);
+    CHECK(out[0].lot.verdicts.size() == 3);
+  }
+  RawDb raw(path);
+  CHECK(raw.Int("PRAGMA user_version") >= 3);
+  CHECK(raw.Int("SELECT count(*) FROM lot_verdicts v JOIN lots l ON v.lot = l.id "
+                "WHERE l.line = 'oats-1'") == 3);
+  const std::string plan =
+      raw.Plan("SELECT id FROM lots WHERE line = 'x' AND last_ms >= 0 ORDER BY id");
+  INFO(plan);
+  CHECK(plan.find("lots_line_last") != std::string::npos);
+}
+
+}  // namespace
 }  // namespace heft

@@ -1,6 +1,7 @@
 #include "core/monitor/stream_ingest.h"
 
 #include <cstdio>
+#include <utility>
 
 namespace heft {
 namespace {
@@ -42,10 +43,11 @@ void StreamIngest::OnRecord(std::string_view text, std::int64_t arrival_ms,
                             std::vector<Finding>* out) {
   if (header_allowed_) {
     header_allowed_ = false;
-    if (IsNativeHeader(text)) return;
+    if (format_ ? format_->TakeHeader(text) : IsNativeHeader(text)) return;
   }
   RecordView record;
-  const RecordParse parse = ParseNativeRecord(text, &record);
+  const RecordParse parse =
+      format_ ? format_->Parse(text, &record) : ParseNativeRecord(text, &record);
   const std::int64_t index = counters_.records++;
   if (!parse.ok()) {
     if (parse.error == RecordError::kEmpty) {  // white space only: not a record after all
@@ -53,7 +55,8 @@ void StreamIngest::OnRecord(std::string_view text, std::int64_t arrival_ms,
       return;
     }
     ++counters_.malformed;
-    listener_.OnProblem({index, parse.error, parse.field, text.size(), Excerpt(text)});
+    listener_.OnProblem(
+        {index, parse.error, parse.field, text.size(), Excerpt(text), parse.field_name});
     return;
   }
   if (plant_.Accept(record, index, arrival_ms, out) != Plant::Accepted::kYes) {
@@ -70,11 +73,26 @@ void StreamIngest::OnRecord(std::string_view text, std::int64_t arrival_ms,
   listener_.OnPack(record.line, pack);
 }
 
+void StreamIngest::SetFormat(std::unique_ptr<RecordFormat> format, std::size_t max_record) {
+  format_ = std::move(format);
+  framer_ = LineFramer(max_record);
+}
+
+void StreamIngest::Restart() {
+  header_allowed_ = true;
+  if (format_) format_->Reset();
+  const std::size_t dropped = framer_.Discard();
+  if (dropped == 0) return;
+  const std::int64_t index = counters_.records++;
+  ++counters_.malformed;
+  listener_.OnProblem({index, RecordError::kTruncated, -1, dropped, std::string(), {}});
+}
+
 void StreamIngest::OnTooLong(std::size_t bytes) {
   header_allowed_ = false;
   const std::int64_t index = counters_.records++;
   ++counters_.malformed;
-  listener_.OnProblem({index, RecordError::kTooLong, -1, bytes, std::string()});
+  listener_.OnProblem({index, RecordError::kTooLong, -1, bytes, std::string(), {}});
 }
 
 }  // namespace heft

@@ -11,6 +11,7 @@
 #pragma once
 
 #include <cstdint>
+#include <memory>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -20,6 +21,7 @@
 #include "core/monitor/plant.h"
 #include "core/record/line_framer.h"
 #include "core/record/native_record.h"
+#include "core/record/record_format.h"
 
 namespace heft {
 
@@ -29,6 +31,7 @@ struct RecordProblem {
   int field = -1;              // 0-based field, -1 when not about one field
   std::size_t length = 0;      // bytes in the record
   std::string excerpt;         // first bytes, control bytes shown as \xHH
+  std::string_view field_name; // field name for configured formats (static), or ""
 };
 
 struct IngestCounters {
@@ -56,6 +59,15 @@ class StreamIngest {
   // End of stream: an unterminated last record is processed too.
   void Finish(std::int64_t arrival_ms, std::vector<Finding>* out);
 
+  // Reads records with `format` (a source's descriptor) instead of the native
+  // CSV, framed at most `max_record` bytes. REQUIRES: before the first Feed.
+  void SetFormat(std::unique_ptr<RecordFormat> format, std::size_t max_record);
+  // The source goes on in a new stream (reconnect, rotated or truncated
+  // file): an unterminated record is dropped, counted as malformed
+  // (`truncated`, it takes its index); the next record may be a header again.
+  // Record numbering continues.
+  void Restart();
+
   const IngestCounters& counters() const { return counters_; }
 
  private:
@@ -65,6 +77,7 @@ class StreamIngest {
   Plant& plant_;
   IngestListener& listener_;
   LineFramer framer_;
+  std::unique_ptr<RecordFormat> format_;  // null: native CSV (the fast default)
   IngestCounters counters_;
   bool header_allowed_ = true;  // only the first record may be the header
 };
