@@ -29,8 +29,8 @@
 
 #include "core/record/native_record.h"
 #include "io/alerting_loader.h"
-#include "io/source_config_loader.h"
 #include "io/rule_table_finder.h"
+#include "io/source_config_loader.h"
 
 namespace heft {
 namespace {
@@ -42,8 +42,8 @@ using KeyList = std::span<const std::string_view>;
 
 // The schema's keys, per block. A line entry takes kLineOnlyKeys and
 // kDetectorKeys; a `defaults` block only kDetectorKeys.
-constexpr std::array kTopKeys = {"listen"sv,   "storage"sv,   "log"sv,    "defaults"sv,
-                                 "max_lines"sv, "lines"sv,     "sources"sv, "alerting"sv, "http"sv};
+constexpr std::array kTopKeys = {"listen"sv, "storage"sv, "log"sv,      "defaults"sv, "max_lines"sv,
+                                 "lines"sv,  "sources"sv, "alerting"sv, "http"sv};
 constexpr std::array kListenKeys = {"address"sv, "port"sv, "max_connections"sv};
 constexpr std::array kStorageKeys = {"database"sv, "raw_samples"sv, "raw_retention_days"sv,
                                      "flush_interval_ms"sv, "batch_max_rows"sv};
@@ -52,7 +52,17 @@ constexpr std::array kHttpKeys = {"enabled"sv, "address"sv, "port"sv, "token"sv}
 constexpr std::array kDetectorKeys = {
     "false_alarms_per_day"sv, "pack_rate_per_min"sv, "min_shift_sigma"sv,
     "baseline_packs"sv,       "silence_s"sv,         "gross_low_ratio"sv,
-    "gross_high_ratio"sv};
+    "gross_high_ratio"sv,     "detection"sv};
+// Detector tuning (`detection:` inside defaults or a line); 0 counts mean "published default".
+constexpr std::array kDetectionKeys = {"drift_lambda"sv,        "head_shift_sigma"sv,
+                                       "spread_ratio"sv,        "min_cycle_sigma"sv,
+                                       "cycle_window_packs"sv,  "cycle_every_packs"sv,
+                                       "run_rules"sv,           "subgroup_packs"sv,
+                                       "run_one_side_count"sv,  "run_trend_count"sv,
+                                       "run_sawtooth_count"sv,  "run_hugging_count"sv,
+                                       "run_avoiding_count"sv,  "stuck_packs"sv,
+                                       "outlier_burst_packs"sv, "settling_alarm_packs"sv,
+                                       "baseline_block_packs"sv};
 constexpr std::array kLineOnlyKeys = {"id"sv, "product"sv, "nominal_g"sv, "target_g"sv, "heads"sv};
 // Net-content compliance keys, allowed in `defaults` and in line entries.
 constexpr std::array kComplianceKeys = {"rules"sv,       "rules_allow_unconfirmed"sv,
@@ -60,10 +70,15 @@ constexpr std::array kComplianceKeys = {"rules"sv,       "rules_allow_unconfirme
                                         "lots"sv,        "compliance"sv,
                                         "safe_target"sv};
 constexpr std::array kLotKeys = {"by"sv, "packs_per_lot"sv, "shifts"sv, "utc_offset_minutes"sv};
-constexpr std::array kComplianceAlertKeys = {
-    "min_packs"sv,           "mean_warn_probability"sv, "mean_alarm_probability"sv,
-    "t1_warn_share_of_limit"sv, "t1_share_min_packs"sv, "t1_warn_probability"sv,
-    "t1_alarm_probability"sv,   "t2_alarm"sv,           "hold_off_packs"sv};
+constexpr std::array kComplianceAlertKeys = {"min_packs"sv,
+                                             "mean_warn_probability"sv,
+                                             "mean_alarm_probability"sv,
+                                             "t1_warn_share_of_limit"sv,
+                                             "t1_share_min_packs"sv,
+                                             "t1_warn_probability"sv,
+                                             "t1_alarm_probability"sv,
+                                             "t2_alarm"sv,
+                                             "hold_off_packs"sv};
 constexpr std::array kSafeTargetKeys = {"t2_risk"sv, "confidence"sv, "t1_share_of_limit"sv,
                                         "mean_margin_g"sv, "hours_per_year"sv};
 
@@ -191,6 +206,7 @@ class Loader {
   bool ReadDouble(const YAML::Node& node, const YAML::Mark& mark, std::string_view path,
                   const Range& range, double* out);
 
+  void LoadDetection(const YAML::Node& node, std::string_view path, LineSettings* out);
   void LoadListen(const YAML::Node& node, ListenSettings* out);
   void LoadStorage(const YAML::Node& node, StorageSettings* out);
   void LoadLog(const YAML::Node& node, LogSettings* out);
@@ -421,10 +437,54 @@ bool Loader::LoadDetectorKey(std::string_view key, const YAML::Node& value, cons
     ReadDouble(value, mark, path, AtLeastBelow(0.0, 1.0), &out->gross_low_ratio);
   } else if (key == "gross_high_ratio") {
     ReadDouble(value, mark, path, AboveAtMost(1.0, 10.0), &out->gross_high_ratio);
+  } else if (key == "detection") {
+    LoadDetection(value, path, out);
   } else {
     return false;
   }
   return true;
+}
+
+void Loader::LoadDetection(const YAML::Node& node, std::string_view path, LineSettings* out) {
+  ForEachKey(node, path, {kDetectionKeys}, {},
+             [&](std::string_view key, const YAML::Node& value, std::string_view key_path,
+                 const YAML::Mark& mark) {
+               if (key == "drift_lambda") {
+                 ReadDouble(value, mark, key_path, AboveAtMost(0.0, 1.0), &out->drift_lambda);
+               } else if (key == "head_shift_sigma") {
+                 ReadDouble(value, mark, key_path, AboveAtMost(0.0, 20.0), &out->head_shift_sigma);
+               } else if (key == "spread_ratio") {
+                 ReadDouble(value, mark, key_path, AboveAtMost(1.0, 10.0), &out->spread_ratio);
+               } else if (key == "min_cycle_sigma") {
+                 ReadDouble(value, mark, key_path, AboveAtMost(0.0, 20.0), &out->min_cycle_sigma);
+               } else if (key == "cycle_window_packs") {
+                 ReadInt(value, mark, key_path, 64, 8192, &out->cycle_window_packs);
+               } else if (key == "cycle_every_packs") {
+                 ReadInt(value, mark, key_path, 1, 8192, &out->cycle_every_packs);
+               } else if (key == "run_rules") {
+                 ReadBool(value, mark, key_path, &out->run_rules);
+               } else if (key == "subgroup_packs") {
+                 ReadInt(value, mark, key_path, 0, 256, &out->subgroup_packs);
+               } else if (key == "run_one_side_count") {
+                 ReadInt(value, mark, key_path, 0, 1000, &out->run_one_side_count);
+               } else if (key == "run_trend_count") {
+                 ReadInt(value, mark, key_path, 0, 1000, &out->run_trend_count);
+               } else if (key == "run_sawtooth_count") {
+                 ReadInt(value, mark, key_path, 0, 1000, &out->run_sawtooth_count);
+               } else if (key == "run_hugging_count") {
+                 ReadInt(value, mark, key_path, 0, 1000, &out->run_hugging_count);
+               } else if (key == "run_avoiding_count") {
+                 ReadInt(value, mark, key_path, 0, 1000, &out->run_avoiding_count);
+               } else if (key == "stuck_packs") {
+                 ReadInt(value, mark, key_path, 2, 100'000, &out->stuck_packs);
+               } else if (key == "outlier_burst_packs") {
+                 ReadInt(value, mark, key_path, 2, 100'000, &out->outlier_burst_packs);
+               } else if (key == "settling_alarm_packs") {
+                 ReadInt(value, mark, key_path, 30, 10'000'000, &out->settling_alarm_packs);
+               } else if (key == "baseline_block_packs") {
+                 ReadInt(value, mark, key_path, 50, 100'000, &out->baseline_block_packs);
+               }
+             });
 }
 
 void Loader::LoadDefaults(const YAML::Node& node, LineSettings* out) {
@@ -545,7 +605,8 @@ void Loader::Load(const YAML::Node& root, Config* config) {
                }
              });
   if (listen) LoadListen(*listen, &config->listen);
-  if (sources) {  // io/source_config_loader.h; with sources and no listen block, no default listener
+  if (sources) {  // io/source_config_loader.h; with sources and no listen block, no default
+                  // listener
     std::vector<ConfigProblem> found;
     LoadSourcesNode(*sources, name_, &config->sources, &found);
     for (ConfigProblem& p : found) errors_.push_back({p.line, p.column, std::move(p.text)});
@@ -609,73 +670,72 @@ void Loader::LoadLots(const YAML::Node& node, const YAML::Mark& mark, std::strin
   comply::LotPolicy policy = *out;
   bool boundary_given = false;
   const std::size_t errors_before = errors_.size();
-  ForEachKey(
-      node, path, {kLotKeys}, {},
-      [&](std::string_view key, const YAML::Node& value, const std::string& key_path,
-          const YAML::Mark& key_mark) {
-        if (key == "by") {
-          std::string by;
-          if (!ReadString(value, key_mark, key_path, &by)) return;
-          boundary_given = true;
-          if (by == "count") {
-            policy.boundary = comply::LotBoundary::kCount;
-          } else if (by == "hour") {
-            policy.boundary = comply::LotBoundary::kHour;
-          } else if (by == "shifts") {
-            policy.boundary = comply::LotBoundary::kShifts;
-          } else if (by == "manual") {
-            policy.boundary = comply::LotBoundary::kManual;
-          } else {
-            Error(key_mark, key_path,
-                  fmt::format("must be one of count, hour, shifts, manual; got {}",
-                              DescribeNode(value)));
-          }
-        } else if (key == "packs_per_lot") {
-          ReadInt(value, key_mark, key_path, 1, 100'000'000, &policy.packs_per_lot);
-        } else if (key == "utc_offset_minutes") {
-          ReadInt(value, key_mark, key_path, -16 * 60, 16 * 60, &policy.utc_offset_minutes);
-        } else if (key == "shifts") {
-          if (!value.IsSequence() || value.size() == 0) {
-            Error(key_mark, key_path,
-                  fmt::format("expected a list of shift start times like \"06:00\", got {}",
-                              DescribeNode(value)));
-            return;
-          }
-          std::vector<int> starts;
-          for (std::size_t i = 0; i < value.size(); ++i) {
-            const YAML::Node item = value[i];
-            const std::string item_path = fmt::format("{}[{}]", key_path, i);
-            // "HH:MM" (24 h clock, local time).
-            std::optional<int> minutes;
-            if (item.IsScalar()) {
-              const std::string& text = item.Scalar();
-              const auto colon = text.find(':');
-              if (colon != std::string::npos && colon >= 1 && colon <= 2 &&
-                  text.size() == colon + 3) {
-                const auto h = ParseInteger(std::string_view(text).substr(0, colon));
-                const auto m = ParseInteger(std::string_view(text).substr(colon + 1));
-                if (h && m && *h >= 0 && *h <= 23 && *m >= 0 && *m <= 59 &&
-                    text[colon + 1] != '+' && text[0] != '+') {
-                  minutes = static_cast<int>(*h * 60 + *m);
-                }
-              }
-            }
-            if (!minutes) {
-              Error(item.Mark(), item_path,
-                    fmt::format("expected a time of day like \"06:00\", got {}",
-                                DescribeNode(item)));
-              return;
-            }
-            if (!starts.empty() && *minutes <= starts.back()) {
-              Error(item.Mark(), item_path,
-                    "shift starts must be in increasing order within one day");
-              return;
-            }
-            starts.push_back(*minutes);
-          }
-          policy.shift_start_minutes = std::move(starts);
-        }
-      });
+  ForEachKey(node, path, {kLotKeys}, {},
+             [&](std::string_view key, const YAML::Node& value, const std::string& key_path,
+                 const YAML::Mark& key_mark) {
+               if (key == "by") {
+                 std::string by;
+                 if (!ReadString(value, key_mark, key_path, &by)) return;
+                 boundary_given = true;
+                 if (by == "count") {
+                   policy.boundary = comply::LotBoundary::kCount;
+                 } else if (by == "hour") {
+                   policy.boundary = comply::LotBoundary::kHour;
+                 } else if (by == "shifts") {
+                   policy.boundary = comply::LotBoundary::kShifts;
+                 } else if (by == "manual") {
+                   policy.boundary = comply::LotBoundary::kManual;
+                 } else {
+                   Error(key_mark, key_path,
+                         fmt::format("must be one of count, hour, shifts, manual; got {}",
+                                     DescribeNode(value)));
+                 }
+               } else if (key == "packs_per_lot") {
+                 ReadInt(value, key_mark, key_path, 1, 100'000'000, &policy.packs_per_lot);
+               } else if (key == "utc_offset_minutes") {
+                 ReadInt(value, key_mark, key_path, -16 * 60, 16 * 60, &policy.utc_offset_minutes);
+               } else if (key == "shifts") {
+                 if (!value.IsSequence() || value.size() == 0) {
+                   Error(key_mark, key_path,
+                         fmt::format("expected a list of shift start times like \"06:00\", got {}",
+                                     DescribeNode(value)));
+                   return;
+                 }
+                 std::vector<int> starts;
+                 for (std::size_t i = 0; i < value.size(); ++i) {
+                   const YAML::Node item = value[i];
+                   const std::string item_path = fmt::format("{}[{}]", key_path, i);
+                   // "HH:MM" (24 h clock, local time).
+                   std::optional<int> minutes;
+                   if (item.IsScalar()) {
+                     const std::string& text = item.Scalar();
+                     const auto colon = text.find(':');
+                     if (colon != std::string::npos && colon >= 1 && colon <= 2 &&
+                         text.size() == colon + 3) {
+                       const auto h = ParseInteger(std::string_view(text).substr(0, colon));
+                       const auto m = ParseInteger(std::string_view(text).substr(colon + 1));
+                       if (h && m && *h >= 0 && *h <= 23 && *m >= 0 && *m <= 59 &&
+                           text[colon + 1] != '+' && text[0] != '+') {
+                         minutes = static_cast<int>(*h * 60 + *m);
+                       }
+                     }
+                   }
+                   if (!minutes) {
+                     Error(item.Mark(), item_path,
+                           fmt::format("expected a time of day like \"06:00\", got {}",
+                                       DescribeNode(item)));
+                     return;
+                   }
+                   if (!starts.empty() && *minutes <= starts.back()) {
+                     Error(item.Mark(), item_path,
+                           "shift starts must be in increasing order within one day");
+                     return;
+                   }
+                   starts.push_back(*minutes);
+                 }
+                 policy.shift_start_minutes = std::move(starts);
+               }
+             });
   if (errors_.size() != errors_before) return;
   if (boundary_given || node.IsMap()) {
     if (Status s = comply::ValidateLotPolicy(policy); !s.ok()) {
@@ -686,8 +746,7 @@ void Loader::LoadLots(const YAML::Node& node, const YAML::Mark& mark, std::strin
   *out = std::move(policy);
 }
 
-void Loader::LoadComplianceAlert(const YAML::Node& node, std::string_view path,
-                                 LineSettings* out) {
+void Loader::LoadComplianceAlert(const YAML::Node& node, std::string_view path, LineSettings* out) {
   comply::ComplianceAlertSettings& a = out->compliance;
   ForEachKey(node, path, {kComplianceAlertKeys}, {},
              [&](std::string_view key, const YAML::Node& value, const std::string& key_path,
@@ -740,8 +799,7 @@ void Loader::LoadSafeTarget(const YAML::Node& node, std::string_view path,
                  ReadDouble(value, mark, key_path, AtLeastBelow(0.5, 1.0), &out->mean_confidence);
                }
                if (key == "t1_share_of_limit") {
-                 ReadDouble(value, mark, key_path, AboveAtMost(0.0, 1.0),
-                            &out->t1_share_of_limit);
+                 ReadDouble(value, mark, key_path, AboveAtMost(0.0, 1.0), &out->t1_share_of_limit);
                }
                if (key == "mean_margin_g") {
                  ReadDouble(value, mark, key_path, Closed(0.0, 1000.0), &out->mean_margin_g);

@@ -173,7 +173,7 @@ TEST_CASE("config: numbers are read as YAML 1.2 decimals, not stream conversions
 TEST_CASE("config error: unknown keys", "[config]") {
   CHECK(Errors("lisen:\n  port: 1\n") ==
         Lines{"t.yaml:1:1: lisen: unknown key (expected one of: listen, storage, log, defaults, "
-              "max_lines, lines)"});
+              "max_lines, lines, sources, alerting, http)"});
   CHECK(Errors("listen:\n  prot: 7311\n") ==
         Lines{"t.yaml:2:3: listen.prot: unknown key (expected one of: address, port, "
               "max_connections)"});
@@ -182,7 +182,9 @@ TEST_CASE("config error: unknown keys", "[config]") {
   CHECK(Errors("lines:\n  - id: oats-1\n    head: 12\n") ==
         Lines{"t.yaml:3:5: lines[0].head: unknown key (expected one of: id, product, nominal_g, "
               "target_g, heads, false_alarms_per_day, pack_rate_per_min, min_shift_sigma, "
-              "baseline_packs, silence_s, gross_low_ratio, gross_high_ratio)"});
+              "baseline_packs, silence_s, gross_low_ratio, gross_high_ratio, detection, rules, "
+              "rules_allow_unconfirmed, cost_per_kg, rejects_in_lot, lots, compliance, "
+              "safe_target)"});
   CHECK(Errors("defaults:\n  nominal_g: 500\n") ==
         Lines{"t.yaml:2:3: defaults.nominal_g: is set per line, not in defaults"});
 }
@@ -677,6 +679,31 @@ TEST_CASE("config: the example's sources block loads", "[config][format]") {
   // The example documents every source type with its format.
   REQUIRE(example.sources.size() >= 5);
   CHECK(example.listen.enabled);
+}
+
+}  // namespace
+}  // namespace heft
+
+namespace heft {
+namespace {
+
+TEST_CASE("config: detector tuning block in defaults and per line", "[config]") {
+  const auto c = MustLoad(
+      "defaults:\n"
+      "  detection: {drift_lambda: 0.1, stuck_packs: 12, run_rules: false}\n"
+      "lines:\n"
+      "  - id: oats-1\n"
+      "    detection: {cycle_window_packs: 1024, subgroup_packs: 6}\n");
+  CHECK(c.plant.defaults.drift_lambda == 0.1);
+  CHECK(c.plant.defaults.stuck_packs == 12);
+  CHECK_FALSE(c.plant.defaults.run_rules);
+  const LineSettings& oats = c.plant.lines.at("oats-1");
+  CHECK(oats.drift_lambda == 0.1);  // inherited
+  CHECK(oats.cycle_window_packs == 1024);
+  CHECK(oats.subgroup_packs == 6);
+  CHECK(Errors("defaults:\n  detection: {drift_lamda: 0.1}\n").size() == 1);
+  CHECK(Errors("defaults:\n  detection:\n    stuck_packs: 1\n") ==
+        Lines{"t.yaml:3:18: defaults.detection.stuck_packs: must be between 2 and 100000, got 1"});
 }
 
 }  // namespace
