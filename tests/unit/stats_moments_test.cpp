@@ -216,7 +216,7 @@ TEST_CASE("CountWindowStats: summary equals a batch summary of the last N", "[st
   CHECK(window.count() == 97);
 }
 
-TEST_CASE("TimeWindowStats: keeps (now − T, now] and matches a batch summary", "[stats]") {
+TEST_CASE("TimeWindowStats: keeps the last T minutes (open start, closed end) and matches a batch summary", "[stats]") {
   TimeWindowStats window(60'000);  // last minute
   std::mt19937_64 rng(9);
   std::normal_distribution<double> noise(0.0, 1.2);

@@ -6,7 +6,10 @@
 // Exit codes: 0 success, 1 a finding the caller asked about, 2 usage/file/config error.
 #pragma once
 
+#include <cstddef>
+#include <cstdint>
 #include <iosfwd>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -42,10 +45,20 @@ class ArgReader {
   std::size_t pos_ = 0;
 };
 
+// How a query command prints: aligned columns for people, CSV or JSON lines for scripts.
+enum class OutputFormat { kTable, kCsv, kJson };
+
+// Option values shared by the query commands. Each returns false and sets
+// *error to a one-line reason naming the option when `text` is not valid.
+bool ParseTimeOption(const std::string& option, const std::string& text,
+                     std::optional<std::int64_t>* out, std::string* error);
+bool ParseLimitOption(const std::string& text, std::size_t* out, std::string* error);
+bool ParseFormatOption(const std::string& text, OutputFormat* out, std::string* error);
+
 }  // namespace heft::cli
 
 #define HEFT_COMMAND_CONCAT2(a, b) a##b
 #define HEFT_COMMAND_CONCAT(a, b) HEFT_COMMAND_CONCAT2(a, b)
-#define HEFT_COMMAND(name, summary, fn)                                     \
+#define HEFT_COMMAND(name, summary, fn)                                       \
   static const bool HEFT_COMMAND_CONCAT(heft_command_registered_, __LINE__) = \
       ::heft::cli::RegisterCommand({name, summary, fn})

@@ -20,11 +20,7 @@ bool TakeHistoryOption(ArgReader& reader, HistoryOptions* options, std::string* 
   std::string value;
   const auto time_option = [&](const char* name, std::optional<std::int64_t>* out) {
     if (!reader.Option(name, &value)) return false;
-    *out = ParseTimeMs(value);
-    if (!*out) {
-      *error = std::string(name) + " '" + value +
-               "' is not a time (ISO-8601 UTC like 2026-03-02T06:00:00Z, or epoch milliseconds)";
-    }
+    ParseTimeOption(name, value, out, error);
     return true;
   };
   if (reader.Option("--db", &value)) {
@@ -43,15 +39,7 @@ bool TakeHistoryOption(ArgReader& reader, HistoryOptions* options, std::string* 
     return true;
   }
   if (reader.Option("--format", &value)) {
-    if (value == "table") {
-      options->format = OutputFormat::kTable;
-    } else if (value == "csv") {
-      options->format = OutputFormat::kCsv;
-    } else if (value == "json") {
-      options->format = OutputFormat::kJson;
-    } else {
-      *error = "unknown --format '" + value + "' (valid: table, csv, json)";
-    }
+    ParseFormatOption(value, &options->format, error);
     return true;
   }
   if (reader.Flag("--local")) {

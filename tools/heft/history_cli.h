@@ -17,8 +17,6 @@
 
 namespace heft::cli {
 
-enum class OutputFormat { kTable, kCsv, kJson };
-
 struct HistoryOptions {
   std::string db;
   std::string line;

@@ -39,8 +39,6 @@ constexpr const char* kUsage =
     "  --format F   table (default, for people), csv (with a header) or json (one\n"
     "               object per line, the form of `heft replay --lots-out`)\n";
 
-enum class Format { kTable, kCsv, kJson };
-
 int Fail(std::ostream& err, std::string_view message) {
   err << "heft lots: " << message << "\n";
   return 2;
@@ -201,39 +199,14 @@ int RunLots(const Args& args, std::ostream& out, std::ostream& err) {
 
   LotQuery query;
   if (have_line) query.line = line;
-  if (have_since) {
-    query.since_ms = ParseTimeMs(since_text);
-    if (!query.since_ms) {
-      return Fail(err, "--since '" + since_text +
-                           "' is not a time (ISO-8601 UTC like 2026-03-02T06:00:00Z, or epoch ms)");
-    }
+  std::string problem;
+  if ((have_since && !ParseTimeOption("--since", since_text, &query.since_ms, &problem)) ||
+      (have_until && !ParseTimeOption("--until", until_text, &query.until_ms, &problem)) ||
+      (!limit_text.empty() && !ParseLimitOption(limit_text, &query.limit, &problem))) {
+    return Fail(err, problem);
   }
-  if (have_until) {
-    query.until_ms = ParseTimeMs(until_text);
-    if (!query.until_ms) {
-      return Fail(err, "--until '" + until_text +
-                           "' is not a time (ISO-8601 UTC like 2026-03-02T06:00:00Z, or epoch ms)");
-    }
-  }
-  if (!limit_text.empty()) {
-    std::uint64_t limit = 0;
-    const char* end = limit_text.data() + limit_text.size();
-    const auto [ptr, ec] = std::from_chars(limit_text.data(), end, limit);
-    if (ec != std::errc() || ptr != end) {
-      return Fail(err, "--limit '" + limit_text + "' is not a non-negative whole number");
-    }
-    query.limit = static_cast<std::size_t>(limit);
-  }
-  Format format = Format::kTable;
-  if (format_text.empty() || format_text == "table") {
-    format = Format::kTable;
-  } else if (format_text == "csv") {
-    format = Format::kCsv;
-  } else if (format_text == "json") {
-    format = Format::kJson;
-  } else {
-    return Fail(err, "unknown --format '" + format_text + "' (valid: table, csv, json)");
-  }
+  OutputFormat format = OutputFormat::kTable;
+  if (!ParseFormatOption(format_text, &format, &problem)) return Fail(err, problem);
 
   std::unique_ptr<SqliteStore> store;
   if (Status s = SqliteStore::Open(db_path, SqliteStore::Mode::kReadOnly, &store); !s.ok()) {
@@ -248,13 +221,13 @@ int RunLots(const Args& args, std::ostream& out, std::ostream& err) {
   if (Status s = store->QueryLots(query, &rows); !s.ok()) return Fail(err, s.message());
 
   switch (format) {
-    case Format::kTable:
+    case OutputFormat::kTable:
       WriteTable(rows, out);
       break;
-    case Format::kCsv:
+    case OutputFormat::kCsv:
       WriteCsv(rows, out);
       break;
-    case Format::kJson:
+    case OutputFormat::kJson:
       for (const LotRow& row : rows) out << LotToJson(row.lot) << "\n";
       break;
   }

@@ -6,6 +6,10 @@
 
 #include "command.h"
 
+#include <charconv>
+
+#include "core/record/native_record.h"
+
 namespace heft::cli {
 
 namespace {
@@ -52,6 +56,41 @@ bool ArgReader::Option(const std::string& name, std::string* value) {
 bool ArgReader::Flag(const std::string& name) {
   if (Done() || args_[pos_] != name) return false;
   ++pos_;
+  return true;
+}
+
+bool ParseTimeOption(const std::string& option, const std::string& text,
+                     std::optional<std::int64_t>* out, std::string* error) {
+  *out = ParseTimeMs(text);
+  if (*out) return true;
+  *error = option + " '" + text +
+           "' is not a time (ISO-8601 UTC like 2026-03-02T06:00:00Z, or epoch ms)";
+  return false;
+}
+
+bool ParseLimitOption(const std::string& text, std::size_t* out, std::string* error) {
+  std::uint64_t limit = 0;
+  const char* end = text.data() + text.size();
+  const auto [ptr, ec] = std::from_chars(text.data(), end, limit);
+  if (text.empty() || ec != std::errc() || ptr != end) {
+    *error = "--limit '" + text + "' is not a non-negative whole number";
+    return false;
+  }
+  *out = static_cast<std::size_t>(limit);
+  return true;
+}
+
+bool ParseFormatOption(const std::string& text, OutputFormat* out, std::string* error) {
+  if (text.empty() || text == "table") {
+    *out = OutputFormat::kTable;
+  } else if (text == "csv") {
+    *out = OutputFormat::kCsv;
+  } else if (text == "json") {
+    *out = OutputFormat::kJson;
+  } else {
+    *error = "unknown --format '" + text + "' (valid: table, csv, json)";
+    return false;
+  }
   return true;
 }
 
