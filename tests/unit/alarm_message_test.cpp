@@ -62,7 +62,7 @@ TEST_CASE("alarm: template renderer fills names and drops empty groups", "[alarm
   CHECK(ValidateTemplate("x ] y", known).message().rfind("column 3:", 0) == 0);
 }
 
-TEST_CASE("alarm: built-in message is OperatorMessage; templates override it", "[alarm]") {
+TEST_CASE("alarm: built-in message is OperatorMessage, templates override it", "[alarm]") {
   LineSettings line;
   line.nominal_g = 500.0;
   line.product = "Rolled oats 500 g";

@@ -70,7 +70,7 @@ TEST_CASE("mean-criterion factor k against the published factors", "[comply]") {
   CHECK(std::fabs(MeanCriterionFactor(125) - 0.234) < 5e-4);
 }
 
-TEST_CASE("t(0.995; n-1) and k against the values computed with scipy (tag X)", "[comply]") {
+TEST_CASE("t(0.995, n-1) and k against the values computed with scipy (tag X)", "[comply]") {
   // check-values.md §1.4 [X] columns (scipy 1.10.1); more digits recomputed here with
   // /usr/bin/python3: scipy.stats.t.ppf(0.995, n-1)/sqrt(n). scipy's ppf is good to
   // about 1e-9 relative here (at n = 80 scipy.stats.t.sf of its own quantile is

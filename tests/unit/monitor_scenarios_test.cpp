@@ -189,7 +189,7 @@ TEST_CASE("scenario: stuck sensor and rising spread", "[monitor][scenario]") {
   CHECK(w->at - 3000 < 300);
 }
 
-TEST_CASE("scenario: a long settling raises an alarm; a burst of gross packs escalates",
+TEST_CASE("scenario: a long settling raises an alarm, a burst of gross packs escalates",
           "[monitor][scenario]") {
   LineSettings ls = Settings();
   ls.settling_alarm_packs = 400;

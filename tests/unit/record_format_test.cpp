@@ -276,7 +276,7 @@ TEST_CASE("json lines: keys, nesting, numbers and bad documents", "[format]") {
         RecordError::kBadTime);  // epoch_ms wants digits
 }
 
-TEST_CASE("weights: scale, offset, units; times: every format", "[format]") {
+TEST_CASE("weights: scale, offset, units, times: every format", "[format]") {
   FormatSettings s;
   s.scale = 0.1;       // the device sends tenths of a gram
   s.offset_g = -12.5;  // and gross weight: 12.5 g of tare off

@@ -229,7 +229,7 @@ TEST_CASE("AR(1) noise: lag-1 autocorrelation phi, marginal sd sigma", "[sim]") 
   }
 }
 
-TEST_CASE("head offsets show in the per-head means; heads cycle in order", "[sim]") {
+TEST_CASE("head offsets show in the per-head means, heads cycle in order", "[sim]") {
   ScenarioSpec spec;
   REQUIRE(MakeDemoScenario("in-control", "oats-1", 3, &spec).ok());
   spec.gross_probability = 0;
@@ -379,7 +379,7 @@ TEST_CASE("stuck sensor repeats the last value for N packs", "[sim]") {
   CHECK(equal < 10);
 }
 
-TEST_CASE("stop produces a time gap of the stated length; times advance at the rate", "[sim]") {
+TEST_CASE("stop produces a time gap of the stated length, times advance at the rate", "[sim]") {
   ScenarioSpec spec = PlainSpec();
   spec.packs_per_minute = 45.0;  // 1333.3 ms per pack
   spec.conditions.push_back(Condition::Stop(1500, 90.0));

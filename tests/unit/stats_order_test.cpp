@@ -181,7 +181,7 @@ TEST_CASE("Nice widths follow the 1-2-5 series", "[stats]") {
   CHECK(NiceWidth(137.0) == Approx(200.0));
 }
 
-TEST_CASE("Histogram: edges on multiples of the width span the data; counts add up", "[stats]") {
+TEST_CASE("Histogram: edges on multiples of the width span the data, counts add up", "[stats]") {
   std::vector<double> e{52.0, 47.0, 53.0, 49.3, 50.1, 47.0, 51.0, 50.1, 51.2, 50.5,
                         49.6, 47.6, 49.9, 51.3, 47.8, 51.2, 52.6, 52.4, 53.6, 52.1};
   std::sort(e.begin(), e.end());

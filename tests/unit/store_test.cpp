@@ -744,7 +744,7 @@ void CheckSameLot(const LotRow& a, const LotRow& b) {
   CHECK(a.recorded_ms == b.recorded_ms);
 }
 
-TEST_CASE("SqliteStore round-trips lots with their verdicts; filters match MemoryStore",
+TEST_CASE("SqliteStore round-trips lots with their verdicts, filters match MemoryStore",
           "[store][lots]") {
   TempDir dir;
   auto store = OpenOrFail(dir.File("heft.db"));
