@@ -4,17 +4,21 @@
 #include <boost/asio/post.hpp>
 
 #include <charconv>
+#include <chrono>
 #include <cmath>
 #include <map>
+#include <optional>
 #include <utility>
 #include <vector>
 
 #include <fmt/format.h>
+#include <spdlog/spdlog.h>
 #include <nlohmann/json.hpp>
 
 #include "batch_writer.h"
 #include "core/record/native_record.h"
 #include "core/stats/window_summary.h"
+#include "io/alarm_store.h"
 #include "io/history_queries.h"
 #include "line_engine.h"
 #include "live_page.h"
@@ -89,6 +93,57 @@ std::string IsoTime(std::int64_t ms) {
 
 Json Finite(double value) { return std::isfinite(value) ? Json(value) : Json(nullptr); }
 
+constexpr std::string_view kAlarmsPrefix = "/api/alarms/";
+constexpr std::string_view kRequestsPrefix = "/api/alarms/requests/";
+constexpr std::size_t kMaxAlarmIdBytes = 200;
+constexpr std::size_t kMaxByBytes = 64;
+constexpr std::size_t kMaxNoteBytes = 1000;
+constexpr std::int64_t kMaxShelveMinutes = 365LL * 24 * 60;  // as `heft shelve --for`
+
+// %XX decoding of one path segment ('+' stays a plus in a path).
+std::optional<std::string> PathDecode(std::string_view text) {
+  std::string out;
+  for (std::size_t i = 0; i < text.size(); ++i) {
+    if (text[i] != '%') {
+      out += text[i];
+      continue;
+    }
+    if (i + 2 >= text.size() || HexValue(text[i + 1]) < 0 || HexValue(text[i + 2]) < 0) {
+      return std::nullopt;
+    }
+    out += static_cast<char>(HexValue(text[i + 1]) * 16 + HexValue(text[i + 2]));
+    i += 2;
+  }
+  return out;
+}
+
+bool HasControlChars(std::string_view text) {
+  for (char c : text) {
+    if (static_cast<unsigned char>(c) < 0x20 || c == 0x7f) return true;
+  }
+  return false;
+}
+
+Json RequestJson(const AlarmRequest& r) {
+  Json j;
+  j["request_id"] = r.id;
+  j["action"] = r.action;
+  j["alarm"] = r.alarm_id;
+  j["by"] = r.who;
+  j["note"] = r.note;
+  j["minutes"] = r.shelve_ms ? Json(*r.shelve_ms / 60'000) : Json(nullptr);
+  j["requested"] = IsoTime(r.requested_ms);
+  j["status"] = r.status;  // pending, done, refused
+  j["result"] = r.result;
+  return j;
+}
+
+std::int64_t WallNowMs() {
+  return std::chrono::duration_cast<std::chrono::milliseconds>(
+             std::chrono::system_clock::now().time_since_epoch())
+      .count();
+}
+
 // Prometheus label value escaping: backslash, quote, newline.
 std::string Label(std::string_view text) {
   std::string out;
@@ -111,6 +166,28 @@ std::string Value(double v) {
 
 }  // namespace
 
+bool BearerTokenMatches(std::string_view authorization, std::string_view expected) {
+  constexpr std::string_view kScheme = "bearer ";
+  if (expected.empty() || authorization.size() <= kScheme.size()) return false;
+  for (std::size_t i = 0; i < kScheme.size(); ++i) {  // the scheme is no secret
+    const char c = authorization[i];
+    if ((c >= 'A' && c <= 'Z' ? static_cast<char>(c - 'A' + 'a') : c) != kScheme[i]) return false;
+  }
+  std::string_view given = authorization.substr(kScheme.size());
+  while (!given.empty() && (given.front() == ' ' || given.front() == '\t')) given.remove_prefix(1);
+  while (!given.empty() && (given.back() == ' ' || given.back() == '\t')) given.remove_suffix(1);
+  if (given.empty()) return false;
+  // Every byte of `expected` is compared, whatever the sent token holds; the
+  // index wraps instead of branching, and a length mismatch only sets a bit.
+  unsigned diff = given.size() == expected.size() ? 0u : 1u;
+  for (std::size_t i = 0; i < expected.size(); ++i) {
+    diff |= static_cast<unsigned char>(given[i % given.size()]) ^
+            static_cast<unsigned char>(expected[i]);
+  }
+  volatile unsigned result = diff;  // keeps the compiler from a short-cut
+  return result == 0;
+}
+
 HttpApi::HttpApi(boost::asio::io_context& io, const LineEngine& engine, const BatchWriter& writer,
                  PlantSettings plant, std::string database)
     : io_(io),
@@ -126,6 +203,7 @@ void HttpApi::Stop() {
   stopped_ = true;
   worker_.join();
   reader_.reset();
+  alarms_.reset();
 }
 
 void HttpApi::OnWorker(std::function<HttpReply(HistoryReader&)> job, Done done) {
@@ -147,14 +225,149 @@ void HttpApi::OnWorker(std::function<HttpReply(HistoryReader&)> job, Done done) 
   });
 }
 
-void HttpApi::Handle(std::string_view method, std::string_view target, Done done) {
-  ++requests_;
-  if (method != "GET" && method != "HEAD") {
-    done(Error(405, "only GET is served"));
+void HttpApi::OnAlarmWorker(std::function<HttpReply(AlarmStore&)> job, Done done) {
+  if (stopped_) {
+    done(Error(503, "shutting down"));
     return;
   }
+  boost::asio::post(worker_, [this, job = std::move(job), done = std::move(done)]() mutable {
+    HttpReply reply;
+    if (!alarms_) {
+      // Read-write: operator requests are rows heftd's tick picks up (as `heft ack` writes them).
+      if (Status s = AlarmStore::Open(database_, AlarmStore::Mode::kReadWrite, &alarms_); !s.ok()) {
+        reply = Error(503, "alarm tables not available: " + s.message());
+      }
+    }
+    if (alarms_) reply = job(*alarms_);
+    boost::asio::post(io_, [done = std::move(done), reply = std::move(reply)]() mutable {
+      done(std::move(reply));
+    });
+  });
+}
+
+void HttpApi::AlarmAction(const std::string& path, const HttpRequestParts& parts, Done done) {
+  // POST /api/alarms/ID/ACTION. Without a token these routes do not exist.
+  const std::string_view rest = std::string_view(path).substr(kAlarmsPrefix.size());
+  const std::size_t slash = rest.rfind('/');
+  const std::string_view action = slash == std::string_view::npos ? "" : rest.substr(slash + 1);
+  if (token_.empty() || slash == 0 || slash == std::string_view::npos ||
+      (action != "ack" && action != "shelve" && action != "unshelve")) {
+    done(Error(404, "no such page: " + path));
+    return;
+  }
+  if (!BearerTokenMatches(parts.authorization, token_)) {
+    ++auth_failures_;
+    // Logged at 1, 2, 4, 8, ... failures so guessing cannot flood the log.
+    if ((auth_failures_ & (auth_failures_ - 1)) == 0) {
+      spdlog::warn("http: refused an operator action ({} token; {} refusals so far)",
+                   parts.authorization.empty() ? "no" : "wrong", auth_failures_);
+    }
+    HttpReply reply = Error(401,
+                            "operator actions need 'Authorization: Bearer TOKEN' with the "
+                            "token of the daemon's http.token");
+    reply.headers.emplace_back("WWW-Authenticate", "Bearer realm=\"heft\"");
+    done(std::move(reply));
+    return;
+  }
+  if (parts.body.size() > kMaxActionBodyBytes) {
+    done(Error(413, fmt::format("request body too large ({} bytes; at most {})", parts.body.size(),
+                                kMaxActionBodyBytes)));
+    return;
+  }
+  const std::optional<std::string> alarm_id = PathDecode(rest.substr(0, slash));
+  if (!alarm_id || alarm_id->empty() || alarm_id->size() > kMaxAlarmIdBytes ||
+      HasControlChars(*alarm_id)) {
+    done(Error(400, "the alarm id in the path is malformed (e.g. /api/alarms/oats-1:drift/ack)"));
+    return;
+  }
+  AlarmRequest request;
+  request.action = std::string(action);
+  request.alarm_id = *alarm_id;
+  request.who = "http";
+  Json body = Json::object();
+  if (parts.body.find_first_not_of(" \t\r\n") != std::string::npos) {
+    body = Json::parse(parts.body, nullptr, false);
+    if (body.is_discarded() || !body.is_object()) {
+      done(
+          Error(400, "the body must be a JSON object like {\"by\": \"maria\", \"note\": \"...\"}"));
+      return;
+    }
+  }
+  for (const auto& [key, value] : body.items()) {
+    if (key == "by" || key == "note") {
+      const std::size_t limit = key == "by" ? kMaxByBytes : kMaxNoteBytes;
+      if (!value.is_string() || value.get_ref<const std::string&>().size() > limit ||
+          (key == "by" && value.get_ref<const std::string&>().empty())) {
+        done(Error(400, fmt::format("\"{}\" must be a{} string of at most {} bytes", key,
+                                    key == "by" ? " non-empty" : "", limit)));
+        return;
+      }
+      (key == "by" ? request.who : request.note) = value.get<std::string>();
+      if (key == "by" && HasControlChars(request.who)) {
+        done(Error(400, "\"by\" must not hold control characters"));
+        return;
+      }
+    } else if (key == "minutes") {
+      if (action != "shelve") {
+        done(Error(400, "\"minutes\" is only for shelve"));
+        return;
+      }
+      if (!value.is_number_integer() || value.get<std::int64_t>() <= 0 ||
+          value.get<std::int64_t>() > kMaxShelveMinutes) {
+        done(
+            Error(400, fmt::format("\"minutes\" must be a whole number 1..{}", kMaxShelveMinutes)));
+        return;
+      }
+      request.shelve_ms = value.get<std::int64_t>() * 60'000;
+    } else {
+      done(Error(400, "unknown field \"" + key + "\" (known: minutes, note, by)"));
+      return;
+    }
+  }
+  request.requested_ms = WallNowMs();
+  OnAlarmWorker(
+      [request](AlarmStore& store) mutable {
+        // The same checks and row as `heft ack|shelve|unshelve` (tools/heft/alarm_command.cpp).
+        std::optional<AlarmStateRow> known;
+        if (Status s = store.FindAlarm(request.alarm_id, &known); !s.ok()) {
+          return Error(500, s.message());
+        }
+        if (!known) {
+          return Error(404, "no alarm \"" + request.alarm_id + "\" (GET /api/alarms lists them)");
+        }
+        if (Status s = store.AddRequest(request, &request.id); !s.ok()) {
+          return Error(503, s.message());
+        }
+        const std::string href = fmt::format("{}{}", kRequestsPrefix, request.id);
+        Json j = RequestJson(request);
+        j["href"] = href;
+        HttpReply reply{202, "application/json", j.dump() + "\n", {}};
+        reply.headers.emplace_back("Location", href);
+        return reply;
+      },
+      std::move(done));
+}
+
+void HttpApi::Handle(std::string_view method, std::string_view target, Done done) {
+  Handle(method, target, HttpRequestParts{}, std::move(done));
+}
+
+void HttpApi::Handle(std::string_view method, std::string_view target,
+                     const HttpRequestParts& parts, Done done) {
+  ++requests_;
   const std::size_t question = target.find('?');
   const std::string path(target.substr(0, question));
+  const bool alarm_route = path.rfind(kAlarmsPrefix, 0) == 0 && path.rfind(kRequestsPrefix, 0) != 0;
+  if (method == "POST" && alarm_route) {
+    AlarmAction(path, parts, std::move(done));
+    return;
+  }
+  if (method != "GET" && method != "HEAD") {
+    HttpReply reply = Error(405, "only GET is served here");
+    reply.headers.emplace_back("Allow", "GET, HEAD");
+    done(std::move(reply));
+    return;
+  }
   const auto params = ParseQuery(question == std::string_view::npos ? std::string_view()
                                                                     : target.substr(question + 1));
   const auto param = [&](const char* name) -> std::string {
@@ -163,7 +376,7 @@ void HttpApi::Handle(std::string_view method, std::string_view target, Done done
   };
 
   if (path == "/" || path == "/index.html") {
-    done({200, "text/html; charset=utf-8", RenderLivePage(engine_.plant())});
+    done({200, "text/html; charset=utf-8", RenderLivePage(engine_.plant(), !token_.empty()), {}});
     return;
   }
   if (path == "/healthz") {
@@ -297,6 +510,49 @@ void HttpApi::Handle(std::string_view method, std::string_view target, Done done
             list.push_back(std::move(e));
           }
           return JsonReply(Json{{"events", list}});
+        },
+        done);
+    return;
+  }
+  if (path == "/api/alarms") {
+    OnAlarmWorker(
+        [actions = !token_.empty()](AlarmStore& store) {
+          std::vector<AlarmStateRow> rows;
+          if (Status s = store.ListAlarms(&rows); !s.ok()) return Error(500, s.message());
+          Json list = Json::array();
+          for (const AlarmStateRow& r : rows) {
+            list.push_back(
+                {{"id", r.alarm_id},
+                 {"line", r.line},
+                 {"kind", r.kind},
+                 {"head", r.head ? Json(*r.head) : Json(nullptr)},
+                 {"state", r.state},
+                 {"priority", r.priority},
+                 {"since", IsoTime(r.since_ms)},
+                 {"since_ms", r.since_ms},
+                 {"shelved_until",
+                  r.shelved_until_ms ? Json(IsoTime(*r.shelved_until_ms)) : Json(nullptr)},
+                 {"message", r.message}});
+          }
+          return JsonReply(Json{{"actions", actions}, {"alarms", list}});
+        },
+        done);
+    return;
+  }
+  if (path.rfind(kRequestsPrefix, 0) == 0) {
+    std::size_t id = 0;
+    if (!ParseCount(path.substr(kRequestsPrefix.size()), &id) || id == 0) {
+      done(Error(400, "request id must be a whole number above 0"));
+      return;
+    }
+    OnAlarmWorker(
+        [id](AlarmStore& store) {
+          AlarmRequest request;
+          // AlarmStore reports a missing row as a read error; both mean "not here".
+          if (Status s = store.GetRequest(static_cast<std::int64_t>(id), &request); !s.ok()) {
+            return Error(404, fmt::format("no operator request {}", id));
+          }
+          return JsonReply(RequestJson(request));
         },
         done);
     return;
@@ -440,6 +696,9 @@ HttpReply HttpApi::Metrics() const {
   out += fmt::format("heft_db_failing {}\n", writer_.failing() ? 1 : 0);
   family("heft_http_requests_total", "counter", "HTTP requests answered.");
   out += fmt::format("heft_http_requests_total {}\n", requests_);
+  family("heft_http_auth_failures_total", "counter",
+         "Operator actions refused for a missing or wrong token.");
+  out += fmt::format("heft_http_auth_failures_total {}\n", auth_failures_);
   return {200, "text/plain; version=0.0.4; charset=utf-8", std::move(out)};
 }
 

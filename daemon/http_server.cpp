@@ -60,7 +60,10 @@ class HttpSession : public std::enable_shared_from_this<HttpSession> {
     const bool keep_alive = request.keep_alive();
     const unsigned version = request.version();
     head_ = request.method() == http::verb::head;
-    api_.Handle(std::string(request.method_string()), std::string(request.target()),
+    HttpRequestParts parts;
+    parts.authorization = std::string(request[http::field::authorization]);
+    parts.body = std::move(request.body());
+    api_.Handle(std::string(request.method_string()), std::string(request.target()), parts,
                 [self = shared_from_this(), version, keep_alive](HttpReply reply) {
                   self->Write(std::move(reply), version, keep_alive);
                 });
@@ -73,6 +76,7 @@ class HttpSession : public std::enable_shared_from_this<HttpSession> {
     response->set(http::field::content_type, reply.content_type);
     response->set(http::field::cache_control, "no-store");
     response->set("X-Content-Type-Options", "nosniff");
+    for (const auto& [name, value] : reply.headers) response->set(name, value);
     if (reply.content_type.rfind("text/html", 0) == 0) {
       // Inline style and script only; the page talks to this server alone.
       response->set("Content-Security-Policy",

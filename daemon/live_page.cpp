@@ -38,10 +38,20 @@ header .clock { font-size: 24px; color: #c3cad4; }
 #chart-box h2 { font-size: 28px; margin: 8px 0; }
 #chart { width: 100%; height: 360px; background: #ffffff; border-radius: 8px; display: block; }
 .stale { opacity: 0.55; }
+.alarm { display: flex; flex-direction: column; gap: 8px; margin-top: 10px; padding: 8px 12px; border-radius: 8px; font-size: 24px; }
+.alarm.unack { background: #3a2a14; border: 3px solid #f0922b; }
+.alarm.acked { background: #232c37; border: 3px dashed #8d98a6; color: #c3cad4; }
+.alarm .what { font-weight: bold; overflow-wrap: break-word; }
+button.ack { font-size: 30px; font-weight: bold; min-height: 64px; width: 100%; padding: 8px 18px; border-radius: 10px; border: 3px solid #f2f4f7; background: #f0922b; color: #10151c; cursor: pointer; }
+button.ack:focus { outline: 4px solid #ffffff; outline-offset: 3px; }
+button.ack:disabled { background: #56606c; color: #f2f4f7; cursor: wait; }
+#notice { font-size: 24px; font-weight: bold; }
 </style>
 </head>
-<body>
-<header><h1>heft — lines</h1><span class="clock" id="clock"></span></header>
+)html";
+
+constexpr const char* kBodyStart =
+    R"html(<header><h1>heft — lines</h1><span id="notice" role="status"></span><span class="clock" id="clock"></span></header>
 <main>
 <section id="tiles">
 )html";
@@ -56,6 +66,9 @@ constexpr const char* kTail = R"html(</section>
 <script>
 "use strict";
 let chosen = null;
+// Acknowledge buttons only when heftd has an operator token (set server-side).
+const ACTIONS = document.body.dataset.actions === "1";
+let alarmsByLine = {};
 const SHAPES = {running: "●", settling: "◐", alert: "▲", waiting: "○"};
 function fmt(v, d) { return (v === null || v === undefined || !isFinite(v)) ? "–" : Number(v).toFixed(d); }
 function tileHtml(l) {
@@ -68,6 +81,66 @@ function tileHtml(l) {
     '<div class="sub">' + give + "</div>" +
     '<div class="alarms">' + alarms + "</div>";
 }
+function notice(text) { document.getElementById("notice").textContent = text; }
+// One row per alarm in a tile: shape and words as well as colour.
+function alarmRows(t, line) {
+  for (const a of alarmsByLine[line] || []) {
+    const row = document.createElement("div");
+    const unack = a.state === "active_unack";
+    row.className = "alarm " + (unack ? "unack" : "acked");
+    const what = document.createElement("span");
+    what.className = "what";
+    what.textContent = (unack ? "▲ NOT ACKNOWLEDGED · " : "■ acknowledged · ") + a.kind +
+      (a.head !== null ? " head " + a.head : "") + " (" + a.priority + ")";
+    row.appendChild(what);
+    if (unack) {
+      const b = document.createElement("button");
+      b.className = "ack";
+      b.type = "button";
+      b.dataset.alarm = a.id;
+      b.textContent = "Acknowledge";
+      b.onclick = (e) => { e.stopPropagation(); acknowledge(a.id, b); };
+      row.appendChild(b);
+    }
+    t.appendChild(row);
+  }
+}
+function operatorToken() {
+  let token = sessionStorage.getItem("heft-token");
+  if (!token) {
+    token = prompt("Operator token (asked once for this browser tab)");
+    if (!token) return null;
+    sessionStorage.setItem("heft-token", token);
+  }
+  return token;
+}
+async function acknowledge(id, button) {
+  const token = operatorToken();
+  if (!token) return;
+  button.disabled = true;
+  button.textContent = "Sending…";
+  try {
+    const r = await fetch("/api/alarms/" + encodeURIComponent(id) + "/ack", {
+      method: "POST", cache: "no-store",
+      headers: {"Authorization": "Bearer " + token, "Content-Type": "application/json"},
+      body: JSON.stringify({by: "floor screen"})});
+    const answer = await r.json().catch(() => ({}));
+    if (r.status === 401) { sessionStorage.removeItem("heft-token"); notice("✖ token refused — try again"); }
+    else if (r.status !== 202) notice("✖ " + (answer.error || "refused (" + r.status + ")"));
+    else {
+      notice("… acknowledging " + id);
+      for (let i = 0; i < 10; ++i) {
+        await new Promise(done => setTimeout(done, 500));
+        const q = await (await fetch(answer.href, {cache: "no-store"})).json();
+        if (q.status === "done") { notice("✔ acknowledged " + id); break; }
+        if (q.status === "refused") { notice("✖ " + q.result); break; }
+      }
+    }
+  } catch (e) {
+    notice("✖ heftd did not answer");
+  }
+  refresh();
+}
 function updateTiles(lines) {
   const box = document.getElementById("tiles");
   for (const l of lines) {
@@ -76,6 +149,7 @@ function updateTiles(lines) {
     t.className = "tile " + l.state + (l.line === chosen ? " chosen" : "");
     t.innerHTML = tileHtml(l);
     t.querySelector(".name").textContent = l.line;
+    if (ACTIONS) alarmRows(t, l.line);
     t.onclick = () => { chosen = l.line; refresh(); };
   }
   if (!chosen && lines.length) chosen = lines[0].line;
@@ -126,6 +200,14 @@ async function refresh() {
   document.getElementById("clock").textContent = new Date().toLocaleTimeString();
   try {
     const lines = (await (await fetch("/api/lines", {cache: "no-store"})).json()).lines;
+    if (ACTIONS) {
+      const alarms = (await (await fetch("/api/alarms", {cache: "no-store"})).json()).alarms || [];
+      alarmsByLine = {};
+      for (const a of alarms) {
+        if (a.state !== "active_unack" && a.state !== "active_ack") continue;
+        (alarmsByLine[a.line] = alarmsByLine[a.line] || []).push(a);
+      }
+    }
     updateTiles(lines);
     document.body.classList.remove("stale");
     if (chosen) {
@@ -149,8 +231,10 @@ std::string Fixed(double v, int decimals) {
 
 }  // namespace
 
-std::string RenderLivePage(const Plant& plant) {
+std::string RenderLivePage(const Plant& plant, bool operator_actions) {
   std::string html = kHead;
+  html += operator_actions ? "<body data-actions=\"1\">\n" : "<body>\n";
+  html += kBodyStart;
   for (const LineSnapshot& s : plant.Snapshot()) {
     const LineSettings& settings = plant.SettingsFor(s.line);
     const char* state = s.packs == 0          ? "waiting"

@@ -2,7 +2,8 @@
 on, a two-line feed, then headless Chromium (Debian's `chromium`) loads / and
 the test checks the DOM (one tile per line, the live chart drawn by the page's
 script) and a screenshot that must not be blank (varied pixel values). Also
-checks /healthz, /metrics (Prometheus text 0.0.4) and /api/lines.
+checks /healthz, /metrics (Prometheus text 0.0.4) and /api/lines. The config has
+an operator token, so unacknowledged alarms get Acknowledge buttons.
 
 Skips (exit 0, 'skipped: chromium not installed') when /usr/bin/chromium is
 absent. Run: python3 test_live_page.py --build-dir B --source-dir S
@@ -16,6 +17,7 @@ import struct
 import subprocess
 import sys
 import tempfile
+import time
 import urllib.request
 import zlib
 
@@ -81,10 +83,16 @@ def body(args):
     try:
         db = os.path.join(tmp, "live.db")
         config = os.path.join(tmp, "heftd.yaml")
-        h.write_config(config, db, extra_listen="http:\n  address: 127.0.0.1\n  port: 0\n")
+        # With an operator token: the page shows Acknowledge buttons (test_http_ack.py
+        # checks that a page without a token has none).
+        h.write_config(config, db, extra_listen="http:\n  address: 127.0.0.1\n  port: 0\n"
+                       "  token: millbrook-floor-7f3a9c21d4\n")
         feed = os.path.join(tmp, "feed.csv")
         r = subprocess.run([os.path.join(args.build_dir, "tools", "heft"), "feed", "--scenario",
                             "drift@oats-1,hunting@honey-2", "--seed", "9", "--packs", "1500",
+                            # recent times: heftd's first tick prunes samples older than
+                            # raw_retention_days (30) by the wall clock
+                            "--start", str(int(time.time() * 1000) - 2 * 3600 * 1000),
                             "--out", feed], capture_output=True, timeout=60)
         h.check(r.returncode == 0, "feed generated")
         daemon = h.Daemon(args.build_dir, config, db)
@@ -113,6 +121,11 @@ def body(args):
                 lines = json.loads(resp.read())["lines"]
             h.check(sorted(l["line"] for l in lines) == sorted(LINES), "/api/lines lists both lines")
 
+            with urllib.request.urlopen(base + "/api/alarms", timeout=5) as resp:
+                unack = [a["id"] for a in json.loads(resp.read())["alarms"]
+                         if a["state"] == "active_unack"]
+            h.check(len(unack) > 0, "/api/alarms has alarms to acknowledge: %s" % unack)
+
             if not os.path.exists(CHROMIUM):
                 return "skipped"
             r = chromium(["--virtual-time-budget=8000", "--dump-dom", base + "/"], tmp)
@@ -125,6 +138,14 @@ def body(args):
                     % dom.count('class="point"'))
             h.check(re.search(r'class="level">\d{3}\.\d<', dom) is not None,
                     "tiles show the level in grams")
+            buttons = re.findall(r'<button class="ack" type="button" data-alarm="([^"]+)">'
+                                 r'Acknowledge</button>', dom)
+            with urllib.request.urlopen(base + "/api/alarms", timeout=5) as resp:
+                unack += [a["id"] for a in json.loads(resp.read())["alarms"]
+                          if a["state"] == "active_unack"]  # silence may start meanwhile
+            h.check(len(buttons) > 0 and len(set(buttons)) == len(buttons) and
+                    set(buttons) <= set(unack),
+                    "Acknowledge buttons, only on unacknowledged alarms: %s" % buttons)
             png = os.environ.get("HEFT_LIVE_PNG") or os.path.join(tmp, "live.png")
             r = chromium(["--virtual-time-budget=8000", "--screenshot=" + png,
                           "--window-size=1280,800", base + "/"], tmp)
