@@ -8,6 +8,7 @@
 #include <utility>
 #include <vector>
 
+#include <fmt/format.h>
 #include <spdlog/spdlog.h>
 
 #include "batch_writer.h"
@@ -19,6 +20,7 @@
 #include "io/sqlite_store.h"
 #include "alarm_service.h"
 #include "line_engine.h"
+#include "sd_notifier.h"
 
 namespace heft {
 namespace {
@@ -46,6 +48,8 @@ const char* SignalName(int signal_number) {
       return "SIGINT";
     case SIGTERM:
       return "SIGTERM";
+    case SIGHUP:
+      return "SIGHUP";
     default:
       return "signal";
   }
@@ -59,6 +63,10 @@ Daemon::Daemon(Config config, const Clock& clock)
 Daemon::~Daemon() = default;
 
 Status Daemon::Start() {
+  if (notifier_ == nullptr) {
+    own_notifier_ = std::make_unique<SdNotifier>();
+    notifier_ = own_notifier_.get();
+  }
   const StorageSettings& storage = config_.storage;
   std::unique_ptr<SqliteStore> sqlite;
   Status status = SqliteStore::Open(storage.database, SqliteStore::Mode::kReadWrite, &sqlite);
@@ -104,6 +112,7 @@ Status Daemon::Start() {
   }
   if (config_.http.enabled) {  // HTTP API and live page (http_server.h)
     http_api_ = std::make_unique<HttpApi>(io_, *engine_, *writer_, config_.plant, storage.database);
+    http_api_->SetOperatorToken(config_.http.token);  // empty: no operator actions
     http_server_ = std::make_unique<HttpServer>(io_, *http_api_);
     status = http_server_->Listen(config_.http.address, config_.http.port);
     if (!status.ok()) return status;
@@ -118,15 +127,19 @@ Status Daemon::Start() {
   boost::system::error_code ec;
   signals_.add(SIGINT, ec);
   if (!ec) signals_.add(SIGTERM, ec);
+  if (!ec) signals_.add(SIGHUP, ec);  // reload
   if (ec) return Status::Error("cannot install signal handlers: " + ec.message());
-  signals_.async_wait([this](const boost::system::error_code& signal_ec, int signal_number) {
-    OnSignal(signal_ec, signal_number);
-  });
+  ArmSignals();
   // Writing to a peer that has gone must not kill the process.
   std::signal(SIGPIPE, SIG_IGN);
 
   writer_->Start();
   tick_due_ = std::chrono::steady_clock::now();
+  // Not at once: a replayed feed with old record times (tests, demos) would
+  // lose its samples before anyone looked at them.
+  next_prune_ = tick_due_ + kFirstPruneDelay;
+  status_since_ = tick_due_;
+  next_status_ = tick_due_ + kStatusPeriod;
   ArmTick();
 
   if (config_.listen.enabled) {
@@ -135,19 +148,166 @@ Status Daemon::Start() {
   } else {
     spdlog::info("ready: {} configured sources, no listen block", config_.sources.size());
   }
+  const auto watchdog = notifier_->watchdog_interval();
+  if (watchdog.count() > 0) {
+    spdlog::info("systemd watchdog: every {} ms; heftd pings from its 1 s tick",
+                 watchdog.count() / 1000);
+    if (watchdog < 2 * kTickPeriod) {
+      spdlog::warn(
+          "systemd watchdog interval {} ms is shorter than two ticks; set WatchdogSec "
+          "to 2 s or more",
+          watchdog.count() / 1000);
+    }
+  }
+  NotifyStatus("READY=1\n");
   return Status::Ok();
+}
+
+void Daemon::ArmSignals() {
+  signals_.async_wait([this](const boost::system::error_code& signal_ec, int signal_number) {
+    OnSignal(signal_ec, signal_number);
+  });
+}
+
+void Daemon::NotifyStatus(std::string_view prefix) {
+  const auto now = std::chrono::steady_clock::now();
+  const double seconds = std::chrono::duration<double>(now - status_since_).count();
+  const LineEngine::Totals& t = engine_->totals();
+  const double rate =
+      seconds > 0.0 ? static_cast<double>(t.records - status_records_) / seconds : 0.0;
+  status_since_ = now;
+  status_records_ = t.records;
+  notifier_->Notify(fmt::format(
+      "{}STATUS={:.0f} records/s; {} lines; {} records, {} malformed; {} raised, {} cleared{}",
+      prefix, rate, engine_->plant().line_count(), t.records, t.malformed, t.raised, t.cleared,
+      writer_->failing() ? "; database writes failing" : ""));
+}
+
+void Daemon::PruneSamples() {
+  const int days = config_.storage.raw_retention_days;
+  if (days <= 0 || !config_.storage.raw_samples) return;
+  const std::int64_t cutoff_ms = clock_.NowMs() - std::int64_t{days} * 86'400'000;
+  const auto started = std::chrono::steady_clock::now();
+  std::int64_t deleted = 0;
+  const Status status = store_->PruneSamples(cutoff_ms, &deleted);
+  const auto took = std::chrono::duration_cast<std::chrono::milliseconds>(
+      std::chrono::steady_clock::now() - started);
+  if (!status.ok()) {
+    spdlog::error("retention: cannot prune raw samples older than {} days: {}", days,
+                  status.message());
+  } else {
+    spdlog::info("retention: pruned {} raw samples older than {} days in {} ms", deleted, days,
+                 took.count());
+  }
+}
+
+void Daemon::Reload() {
+  ++reloads_;
+  const auto monotonic_us = std::chrono::duration_cast<std::chrono::microseconds>(
+      std::chrono::steady_clock::now().time_since_epoch());
+  notifier_->Notify(fmt::format("RELOADING=1\nMONOTONIC_USEC={}", monotonic_us.count()));
+  spdlog::info("received SIGHUP: reloading {}", config_.path);
+  Config fresh;
+  std::vector<std::string> errors;
+  const Status loaded = LoadConfigFile(config_.path, &fresh, &errors);
+  if (!loaded.ok()) {
+    if (errors.empty()) errors.push_back(loaded.message());
+    for (const std::string& error : errors) spdlog::error("reload: {}", error);
+    spdlog::error("reload rejected: {} error(s) in {}; the running configuration stays",
+                  errors.size(), config_.path);
+    NotifyStatus(
+        fmt::format("READY=1\nSTATUS=reload rejected ({} errors); running on the old "
+                    "config\n",
+                    errors.size()));
+    return;
+  }
+  if (!overrides_.database.empty()) fresh.storage.database = overrides_.database;
+  if (overrides_.port >= 0) fresh.listen.port = overrides_.port;
+
+  // What cannot change under a running process.
+  std::vector<std::string> restart;
+  const ListenSettings& l0 = config_.listen;
+  const ListenSettings& l1 = fresh.listen;
+  if (l0.enabled != l1.enabled || l0.address != l1.address || l0.port != l1.port ||
+      l0.max_connections != l1.max_connections) {
+    restart.push_back("listen");
+  }
+  const StorageSettings& s0 = config_.storage;
+  const StorageSettings& s1 = fresh.storage;
+  if (s0.database != s1.database) restart.push_back("storage.database");
+  if (s0.raw_samples != s1.raw_samples) restart.push_back("storage.raw_samples");
+  if (s0.flush_interval_ms != s1.flush_interval_ms) restart.push_back("storage.flush_interval_ms");
+  if (s0.batch_max_rows != s1.batch_max_rows) restart.push_back("storage.batch_max_rows");
+  if (config_.http.enabled != fresh.http.enabled || config_.http.address != fresh.http.address ||
+      config_.http.port != fresh.http.port) {
+    restart.push_back("http");
+  }
+  if (config_.sources.size() != fresh.sources.size()) restart.push_back("sources");
+  if (config_.log.level != fresh.log.level || config_.log.file != fresh.log.file) {
+    restart.push_back("log");
+  }
+  for (const std::string& what : restart) {
+    spdlog::warn("reload: {} changed; needs restart (the running value stays)", what);
+  }
+  spdlog::info("reload: sources and alerting are read at start; changes to them need a restart");
+
+  // Lines: register new and changed ones, then apply to the monitors.
+  std::vector<LineRow> rows;
+  for (const auto& [id, line] : fresh.plant.lines) {
+    LineRow row;
+    row.line = id;
+    row.product = line.product;
+    row.nominal_g = line.nominal_g;
+    row.target_g = line.target_g;
+    row.heads = line.heads;
+    rows.push_back(std::move(row));
+  }
+  for (const auto& [id, line] : fresh.plant.lines) {
+    if (config_.plant.lines.find(id) == config_.plant.lines.end()) {
+      spdlog::info("reload: line {} added", id);
+    }
+  }
+  for (const auto& [id, line] : config_.plant.lines) {
+    if (fresh.plant.lines.find(id) == fresh.plant.lines.end()) {
+      spdlog::warn(
+          "reload: line {} no longer configured; a running monitor keeps its settings "
+          "until a restart",
+          id);
+    }
+  }
+  if (!rows.empty()) {
+    const Status upserted = store_->UpsertLines(rows);
+    if (!upserted.ok()) spdlog::error("reload: cannot register lines: {}", upserted.message());
+  }
+  if (s0.raw_retention_days != s1.raw_retention_days) {
+    spdlog::info("reload: storage.raw_retention_days {} -> {}", s0.raw_retention_days,
+                 s1.raw_retention_days);
+    config_.storage.raw_retention_days = s1.raw_retention_days;
+    next_prune_ = std::chrono::steady_clock::now();  // apply at the next tick
+  }
+  engine_->Reconfigure(fresh.plant);
+  config_.plant = std::move(fresh.plant);
+  spdlog::info("reload done: {} configured lines", config_.plant.lines.size());
+  NotifyStatus("READY=1\n");
 }
 
 void Daemon::Run() { io_.run(); }
 
 void Daemon::OnSignal(const boost::system::error_code& ec, int signal_number) {
   if (ec) return;  // operation_aborted: the signal set was cleared
+  if (signal_number == SIGHUP) {
+    if (stopping_) return;
+    Reload();
+    ArmSignals();
+    return;
+  }
   Shutdown(SignalName(signal_number));
 }
 
 void Daemon::Shutdown(std::string_view why) {
   if (stopping_) return;
   stopping_ = true;
+  notifier_->Notify("STOPPING=1\nSTATUS=shutting down");
   spdlog::info("received {}: shutting down (a second signal exits at once)", why);
   // Swap Asio's handler for ExitAtOnce with both signals blocked, so none
   // arriving in between meets the default action.
@@ -155,12 +315,14 @@ void Daemon::Shutdown(std::string_view why) {
   sigemptyset(&both);
   sigaddset(&both, SIGINT);
   sigaddset(&both, SIGTERM);
+  sigaddset(&both, SIGHUP);
   sigset_t previous;
   ::pthread_sigmask(SIG_BLOCK, &both, &previous);
   boost::system::error_code ignored;
   signals_.clear(ignored);
   signals_.cancel(ignored);
   InstallExitAtOnce();
+  std::signal(SIGHUP, SIG_IGN);  // no reload (nor the default exit) while stopping
   ::pthread_sigmask(SIG_SETMASK, &previous, nullptr);
   tick_timer_.cancel();
 
@@ -202,6 +364,18 @@ void Daemon::OnTick(const boost::system::error_code& ec) {
   }
   engine_->AdvanceClock();
   alarms_->Tick();
+  // The tick runs on the one thread that also ingests, writes and alerts, so
+  // a ping here says that loop is alive (a stalled loop misses the ping).
+  if (notifier_->watchdog_interval().count() > 0) notifier_->Notify("WATCHDOG=1");
+  const auto after = std::chrono::steady_clock::now();
+  if (after >= next_status_) {
+    next_status_ = after + kStatusPeriod;
+    NotifyStatus("");
+  }
+  if (after >= next_prune_) {
+    next_prune_ = after + kPrunePeriod;
+    PruneSamples();
+  }
   ArmTick();
 }
 

@@ -14,12 +14,18 @@
 //   4. log a summary; run() returns because no work is left.
 // A second signal during shutdown exits at once with status 1.
 //
+// Service manager (sd_notifier.h): READY=1 once the database is open and the
+// ports are bound; STATUS= every few seconds (records/s); WATCHDOG=1 from the
+// tick when $WATCHDOG_USEC is set; STOPPING=1 at shutdown. SIGHUP reloads the
+// config (Reload()) between RELOADING=1 and READY=1.
+//
 // Not thread-safe: everything runs on the thread that calls Run(). `clock` is
 // borrowed and must outlive the Daemon.
 #pragma once
 
 #include <chrono>
 #include <memory>
+#include <string>
 #include <string_view>
 
 #include <boost/asio/io_context.hpp>
@@ -40,12 +46,25 @@ class IngestServer;
 class SourceSet;
 class LineEngine;
 class AlarmService;
+class Notifier;
 
 class Daemon {
  public:
   // Housekeeping period and how late a tick may run before we warn.
   static constexpr std::chrono::milliseconds kTickPeriod{1000};
   static constexpr std::chrono::milliseconds kTickLateWarning{1000};
+
+  // How often raw samples older than storage.raw_retention_days are pruned.
+  static constexpr std::chrono::minutes kPrunePeriod{60};
+  static constexpr std::chrono::minutes kFirstPruneDelay{10};  // after a start
+  // STATUS= notifications at most this often.
+  static constexpr std::chrono::seconds kStatusPeriod{5};
+
+  // Command-line settings that win over the config file, also on reload.
+  struct Overrides {
+    std::string database;  // empty = from the config
+    int port = -1;         // -1 = from the config
+  };
 
   Daemon(Config config, const Clock& clock);
   ~Daemon();
@@ -57,10 +76,24 @@ class Daemon {
   Status Start();
   // Runs until shutdown has completed.
   void Run();
+  // Before Start(): the command line's overrides, re-applied on reload.
+  void SetOverrides(Overrides overrides) { overrides_ = std::move(overrides); }
+  // Before Start(): where READY/STATUS/WATCHDOG go (default: SdNotifier from
+  // the environment). Borrowed; must outlive the Daemon.
+  void SetNotifier(Notifier* notifier) { notifier_ = notifier; }
 
  private:
   void OnSignal(const boost::system::error_code& ec, int signal_number);
   void Shutdown(std::string_view why);
+  // SIGHUP: re-reads config_.path. A bad file is rejected with every error
+  // logged and the running config kept; a good one is applied to the lines
+  // (LineEngine::Reconfigure) and to storage.raw_retention_days; other blocks
+  // that changed are logged as needing a restart.
+  void Reload();
+  void ArmSignals();
+  // Retention: deletes raw samples older than storage.raw_retention_days.
+  void PruneSamples();
+  void NotifyStatus(std::string_view prefix);
   void ArmTick();
   // The housekeeping tick. Jobs: (1) warn when the loop stalled (tick late by
   // more than kTickLateWarning); (2) LineEngine::AdvanceClock for silence.
@@ -82,6 +115,14 @@ class Daemon {
   boost::asio::steady_timer tick_timer_;
   std::chrono::steady_clock::time_point tick_due_;
   bool stopping_ = false;
+  Overrides overrides_;
+  std::unique_ptr<Notifier> own_notifier_;  // when SetNotifier was not called
+  Notifier* notifier_ = nullptr;
+  std::chrono::steady_clock::time_point next_prune_{};
+  std::chrono::steady_clock::time_point next_status_{};
+  std::chrono::steady_clock::time_point status_since_{};
+  std::int64_t status_records_ = 0;  // Totals::records at status_since_
+  std::int64_t reloads_ = 0;
 };
 
 }  // namespace heft

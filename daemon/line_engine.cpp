@@ -84,6 +84,18 @@ void LineEngine::CloseAllLots() {
   QueueClosedLots("heftd:shutdown");
 }
 
+void LineEngine::Reconfigure(PlantSettings settings) {
+  for (const Plant::ReloadNote& note : plant_.Reconfigure(std::move(settings))) {
+    if (note.restarted) {
+      spdlog::info("reload: line {}: {}; re-baselined (settling again, open lot closed)",
+                   note.line, note.what);
+    } else {
+      spdlog::warn("reload: line {}: {}", note.line, note.what);
+    }
+  }
+  QueueClosedLots("heftd:reload");
+}
+
 void LineEngine::OnCounters(const IngestCounters& before, const IngestCounters& after) {
   totals_.records += after.records - before.records;
   totals_.accepted += after.accepted - before.accepted;

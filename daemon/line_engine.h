@@ -66,6 +66,10 @@ class LineEngine {
   // Shutdown: closes every open lot (marked partial) and queues it.
   void CloseAllLots();
 
+  // SIGHUP with a valid new config: Plant::Reconfigure, logs what happened
+  // to each line and queues the lots it closed.
+  void Reconfigure(PlantSettings settings);
+
   // Called with each non-empty batch of findings, after they are logged and
   // queued (heftd's AlarmService). Same thread.
   void SetFindingsListener(std::function<void(const std::vector<Finding>&)> listener) {

@@ -7,7 +7,10 @@
 // --check-config; 1 on an unexpected failure while running (so a supervisor
 // restarts it) or a second signal during shutdown; 2 on a usage, config or
 // startup error (database cannot open, port in use).
+#include <sys/stat.h>
+
 #include <cerrno>
+#include <cstdio>
 #include <cstdlib>
 #include <exception>
 #include <iostream>
@@ -15,6 +18,7 @@
 #include <string>
 #include <vector>
 
+#include <spdlog/pattern_formatter.h>
 #include <spdlog/sinks/rotating_file_sink.h>
 #include <spdlog/sinks/stdout_color_sinks.h>
 #include <spdlog/spdlog.h>
@@ -98,8 +102,55 @@ bool ParseArgs(int argc, char** argv, Options* options, std::string* error, bool
   return true;
 }
 
+// `<N>` at the start of a line: its syslog priority for journald (sd-daemon(3);
+// operations.md §3.5, §3.6), so `journalctl -p warning` finds heftd's warnings.
+class JournalPriorityFlag final : public spdlog::custom_flag_formatter {
+ public:
+  void format(const spdlog::details::log_msg& msg, const std::tm&,
+              spdlog::memory_buf_t& dest) override {
+    char priority = '6';  // info
+    switch (msg.level) {
+      case spdlog::level::trace:
+      case spdlog::level::debug:
+        priority = '7';
+        break;
+      case spdlog::level::warn:
+        priority = '4';
+        break;
+      case spdlog::level::err:
+        priority = '3';
+        break;
+      case spdlog::level::critical:
+        priority = '2';
+        break;
+      default:
+        break;
+    }
+    const char text[] = {'<', priority, '>'};
+    dest.append(text, text + 3);
+  }
+  std::unique_ptr<custom_flag_formatter> clone() const override {
+    return std::make_unique<JournalPriorityFlag>();
+  }
+};
+
+// True when stderr is the journal stream systemd gave us ($JOURNAL_STREAM is
+// "device:inode" of it; systemd.exec(5)).
+bool StderrIsJournal() {
+  const char* stream = std::getenv("JOURNAL_STREAM");
+  if (stream == nullptr) return false;
+  struct stat st = {};
+  if (::fstat(2, &st) != 0) return false;
+  unsigned long long device = 0, inode = 0;
+  if (std::sscanf(stream, "%llu:%llu", &device, &inode) != 2) return false;
+  return device == static_cast<unsigned long long>(st.st_dev) &&
+         inode == static_cast<unsigned long long>(st.st_ino);
+}
+
 // Console sink on stderr, plus a rotating file when log.file is set. Throws
-// spdlog::spdlog_ex when the file cannot be opened.
+// spdlog::spdlog_ex when the file cannot be opened. Under systemd (stderr is
+// the journal) console lines carry a `<N>` priority and no timestamp, which
+// journald adds itself.
 void SetUpLogging(const heft::LogSettings& log) {
   std::vector<spdlog::sink_ptr> sinks;
   sinks.push_back(std::make_shared<spdlog::sinks::stderr_color_sink_st>());
@@ -113,6 +164,11 @@ void SetUpLogging(const heft::LogSettings& log) {
   if (!known) level = spdlog::level::info;
   logger->set_level(level);
   logger->set_pattern("%Y-%m-%dT%H:%M:%S.%eZ %l %v", spdlog::pattern_time_type::utc);
+  if (StderrIsJournal()) {
+    auto journal = std::make_unique<spdlog::pattern_formatter>();
+    journal->add_flag<JournalPriorityFlag>('*').set_pattern("%*%l %v");
+    sinks.front()->set_formatter(std::move(journal));
+  }
   logger->flush_on(spdlog::level::info);  // heftd logs transitions and faults only: few lines
   spdlog::set_default_logger(logger);
   if (!known) spdlog::warn("log.level \"{}\" not known; using info", log.level);
@@ -148,6 +204,7 @@ int RunDaemon(const Options& options) {
 
   heft::SystemClock clock;
   heft::Daemon daemon(std::move(config), clock);
+  daemon.SetOverrides({options.db, options.port});  // they win on SIGHUP reload too
   const heft::Status started = daemon.Start();
   if (!started.ok()) {
     spdlog::error("startup failed: {}", started.message());

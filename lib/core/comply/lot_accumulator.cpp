@@ -34,6 +34,58 @@ LotAccumulator::LotAccumulator(const NetContentLimits& limits, const LotSettings
 
 void LotAccumulator::Reset() { *this = LotAccumulator(limits_, settings_); }
 
+LotAccumulator::Checkpoint LotAccumulator::Save() const {
+  Checkpoint c;
+  c.count = count_;
+  c.rejected = rejected_;
+  c.gross = gross_;
+  c.errors = errors_;
+  c.invalid = invalid_;
+  c.seen = seen_;
+  c.reference = reference_;
+  c.mean_dev = mean_dev_;
+  c.m2 = m2_;
+  c.sum_mr = sum_mr_;
+  c.last = last_;
+  c.min = min_;
+  c.max = max_;
+  c.t1 = t1_;
+  c.t2 = t2_;
+  c.below_nominal = below_nominal_;
+  c.rejected_below_t1 = rejected_below_t1_;
+  c.first_time_ms = first_time_ms_;
+  c.last_time_ms = last_time_ms_;
+  c.first_index = first_index_;
+  c.last_index = last_index_;
+  c.any = any_;
+  return c;
+}
+
+void LotAccumulator::Restore(const Checkpoint& c) {
+  count_ = c.count;
+  rejected_ = c.rejected;
+  gross_ = c.gross;
+  errors_ = c.errors;
+  invalid_ = c.invalid;
+  seen_ = c.seen;
+  reference_ = c.reference;
+  mean_dev_ = c.mean_dev;
+  m2_ = c.m2;
+  sum_mr_ = c.sum_mr;
+  last_ = c.last;
+  min_ = c.min;
+  max_ = c.max;
+  t1_ = c.t1;
+  t2_ = c.t2;
+  below_nominal_ = c.below_nominal;
+  rejected_below_t1_ = c.rejected_below_t1;
+  first_time_ms_ = c.first_time_ms;
+  last_time_ms_ = c.last_time_ms;
+  first_index_ = c.first_index;
+  last_index_ = c.last_index;
+  any_ = c.any;
+}
+
 void LotAccumulator::Add(double grams, PackRole role, std::int64_t time_ms, std::int64_t index) {
   ++seen_;
   if (!any_) {

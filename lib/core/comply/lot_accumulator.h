@@ -88,6 +88,22 @@ class LotAccumulator {
   const NetContentLimits& limits() const { return limits_; }
   std::int64_t count() const { return count_; }
 
+  // Everything the accumulator has taken in, as plain values, so an open lot
+  // can be saved (heftd's restart checkpoint) and continued: Restore() of a
+  // Checkpoint() then the same Add()s gives the same figures as no break.
+  // Limits and settings are not part of it (they come from the config).
+  struct Checkpoint {
+    std::int64_t count = 0, rejected = 0, gross = 0, errors = 0, invalid = 0, seen = 0;
+    double reference = 0.0, mean_dev = 0.0, m2 = 0.0, sum_mr = 0.0, last = 0.0;
+    double min = std::numeric_limits<double>::infinity();
+    double max = -std::numeric_limits<double>::infinity();
+    std::int64_t t1 = 0, t2 = 0, below_nominal = 0, rejected_below_t1 = 0;
+    std::int64_t first_time_ms = 0, last_time_ms = 0, first_index = 0, last_index = 0;
+    bool any = false;
+  };
+  Checkpoint Save() const;
+  void Restore(const Checkpoint& checkpoint);
+
  private:
   NetContentLimits limits_;
   LotSettings settings_;

@@ -67,6 +67,20 @@ class Plant {
   // Why lines that have a nominal keep no lots (e.g. a nominal outside the table).
   const std::vector<std::string>& compliance_problems() const { return compliance_problems_; }
 
+  // What a reload did to one line that already had a monitor.
+  struct ReloadNote {
+    std::string line;
+    bool restarted = false;  // targets changed: settling again, open lot closed (partial)
+    std::string what;        // for the log, e.g. "target_g 503 -> 505"
+  };
+  // Applies reloaded settings (SIGHUP). Lines whose targets changed
+  // (nominal_g, target_g, heads or the rule table) start again: a new settling
+  // and a new lot (the open one is closed as partial; drain with
+  // TakeClosedLots()). Other lines keep their state and the settings they were
+  // built with; where their detection settings changed the note says so (they
+  // apply after a restart). Lines first seen later use the new settings.
+  std::vector<ReloadNote> Reconfigure(PlantSettings settings);
+
   std::vector<LineSnapshot> Snapshot() const;
   std::size_t line_count() const { return monitors_.size(); }
   const LineSettings& SettingsFor(std::string_view line) const;
@@ -78,6 +92,8 @@ class Plant {
     std::int64_t last_arrival_ms = 0;  // arrival clock, for AdvanceTo
   };
   Entry* FindOrCreate(std::string_view line);
+  // Builds entry.compliance from the current settings (null when the line keeps no lots).
+  void MakeCompliance(Entry& entry, const LineSettings& line_settings);
 
   PlantSettings settings_;
   std::vector<Entry> monitors_;                       // in order of first appearance
