@@ -13,7 +13,7 @@
 // measured ~190 ns of order-statistics work per window update at N = 500 on this machine
 // class, nearly all of it branch mispredictions on the ~40 random-key comparisons of its
 // walks. Blocks keep the searches short and branch-free and the moves contiguous (~32
-// doubles): ~110 ns per update at N = 500 (tools/bench/stats_bench.cpp, Release, shared
+// doubles): ~110 ns per update at N = 500 (tools/microbench/stats_bench.cpp, Release, shared
 // 2-core VM). Two heaps with a moving split give one fixed quantile only; a Fenwick tree
 // indexed by value needs the value universe in advance, which a stream of doubles lacks.
 // Equal values are interchangeable for order statistics, so Erase removes any one copy.
