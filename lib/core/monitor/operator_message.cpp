@@ -83,7 +83,8 @@ std::string OperatorMessage(const Finding& f, const LineSettings& line) {
         return where + "pack of " + (f.level_g ? Grams(*f.level_g) : std::string("?")) +
                (f.detector == "gross_pack" ? " is a gross pack (empty, double or misweighed)"
                                            : " is far outside the usual spread") +
-               Since(f) + ". Check first: the checkweigher's reject station and the pack "
+               Since(f) +
+               ". Check first: the checkweigher's reject station and the pack "
                "transfer; a single pack needs no action.";
       }
       return where + "no more stray packs" +
@@ -91,19 +92,24 @@ std::string OperatorMessage(const Finding& f, const LineSettings& line) {
                              " in the burst)"
                        : "") +
              ".";
-    case FindingKind::kDrift:
-      return where + (raised ? "level drifting" + Since(f) +
-                                   ". Check first: product density, hopper level."
-                             : "drift has stopped.");
+    case FindingKind::kDrift: {
+      if (!raised) return where + "level back near its baseline; the drift is over.";
+      // The slope fitted at the moment of detection runs high (the signal picks
+      // the noisiest stretch), so the message gives the change so far; the
+      // event's slope_g_per_h field keeps the fitted rate for engineers.
+      const std::string how = f.size_g ? " " + Grams(*f.size_g, true) + " so far" : "";
+      return where + "level drifting" + how + Since(f) + "." + Effect(f, line) +
+             " Check first: product density, hopper level.";
+    }
     case FindingKind::kOscillation:
       return where + (raised ? "weights swinging" + Since(f) +
                                    ". Check first: one head's valve or nozzle; the fill "
                                    "controller's gain."
                              : "swing has stopped.");
     case FindingKind::kSpread:
-      return where + (raised ? "spread rising" + Since(f) +
-                                   ". Check first: worn valves, product flow."
-                             : "spread back to normal.");
+      return where + (raised
+                          ? "spread rising" + Since(f) + ". Check first: worn valves, product flow."
+                          : "spread back to normal.");
     case FindingKind::kStuck:
       return where + (raised ? "the same reading repeats" + Since(f) +
                                    ". Check first: the checkweigher's load cell and its link."
