@@ -57,13 +57,21 @@ double MeanVarianceFactor(int n, double phi) {
   }
   return std::max(0.1, s);
 }
+// A design from the shared cache when there is one.
+DetectorDesign Design(DesignCache* designs, double false_alarms_per_day, double packs_per_minute,
+                      double min_shift_sigma) {
+  if (designs != nullptr)
+    return designs->Get(false_alarms_per_day, packs_per_minute, min_shift_sigma);
+  return DesignDetectors(false_alarms_per_day, packs_per_minute, min_shift_sigma);
+}
 }  // namespace
 
-LineMonitor::LineMonitor(std::string line, const LineSettings& settings)
+LineMonitor::LineMonitor(std::string line, const LineSettings& settings, DesignCache* designs)
     : line_(std::move(line)),
       settings_(settings),
-      design_(DesignDetectors(settings.false_alarms_per_day, settings.pack_rate_per_min,
-                              settings.min_shift_sigma)),
+      designs_(designs),
+      design_(Design(designs, settings.false_alarms_per_day, settings.pack_rate_per_min,
+                     settings.min_shift_sigma)),
       cusum_up_(design_.cusum_k, design_.cusum_h),
       cusum_down_(design_.cusum_k, design_.cusum_h),
       // L for the EWMA's share, by the Brook–Evans chain (ewma_chart.h). λ and L are
@@ -264,9 +272,12 @@ void LineMonitor::FinishSettling(const Pack& pack, std::size_t settle_at,
 
   // Designs that depend on what was learnt.
   inflation_ = baseline_.AutocorrelationInflation();
+  // The design target is rounded to 1 % of a sigma so that lines whose learnt
+  // autocorrelation is nearly the same share one design.
+  const double design_shift =
+      std::max(0.01, std::round(100.0 * settings_.min_shift_sigma / inflation_) / 100.0);
   const DetectorDesign mean_design =
-      DesignDetectors(settings_.false_alarms_per_day, settings_.pack_rate_per_min,
-                      settings_.min_shift_sigma / inflation_);
+      Design(designs_, settings_.false_alarms_per_day, settings_.pack_rate_per_min, design_shift);
   cusum_k_ = mean_design.cusum_k;
   cusum_h_ = mean_design.cusum_h;
   cusum_up_ = TabularCusum(cusum_k_, cusum_h_);

@@ -33,6 +33,7 @@
 #include <string>
 #include <vector>
 
+#include "core/detect/design_cache.h"
 #include "core/detect/detector_design.h"
 #include "core/detect/ewma_chart.h"
 #include "core/detect/head_cusum.h"
@@ -53,7 +54,9 @@ namespace heft {
 class LineMonitor {
  public:
   // `settings` is copied.
-  LineMonitor(std::string line, const LineSettings& settings);
+  // `designs`, when given, is borrowed (it must outlive this monitor) and shares
+  // detector designs between lines; without it each design is computed here.
+  LineMonitor(std::string line, const LineSettings& settings, DesignCache* designs = nullptr);
 
   void Push(const Pack& pack, std::vector<Finding>* out);
 
@@ -118,6 +121,7 @@ class LineMonitor {
 
   std::string line_;
   LineSettings settings_;
+  DesignCache* designs_ = nullptr;  // borrowed; may be null
   DetectorDesign design_;
 
   Phase phase_ = Phase::kSettling;

@@ -21,9 +21,9 @@ Plant::Entry* Plant::FindOrCreate(std::string_view line) {
   if (last_used_ < monitors_.size() && monitors_[last_used_].monitor->line() == line) {
     return &monitors_[last_used_];
   }
-  auto it = std::lower_bound(
-      index_.begin(), index_.end(), line,
-      [](const auto& entry, std::string_view key) { return entry.first < key; });
+  auto it =
+      std::lower_bound(index_.begin(), index_.end(), line,
+                       [](const auto& entry, std::string_view key) { return entry.first < key; });
   if (it != index_.end() && it->first == line) {
     last_used_ = it->second;
     return &monitors_[it->second];
@@ -31,7 +31,7 @@ Plant::Entry* Plant::FindOrCreate(std::string_view line) {
   if (monitors_.size() >= settings_.max_lines) return nullptr;
   const LineSettings& line_settings = SettingsFor(line);
   monitors_.push_back(
-      {std::make_unique<LineMonitor>(std::string(line), line_settings), nullptr, 0});
+      {std::make_unique<LineMonitor>(std::string(line), line_settings, &designs_), nullptr, 0});
   MakeCompliance(monitors_.back(), line_settings);
   last_used_ = monitors_.size() - 1;
   index_.insert(it, {std::string(line), last_used_});
@@ -110,7 +110,7 @@ std::vector<Plant::ReloadNote> Plant::Reconfigure(PlantSettings settings) {
     if (!note.what.empty()) {
       note.restarted = true;
       if (entry.compliance) entry.compliance->CloseLot(true, &closed_lots_);
-      entry.monitor = std::make_unique<LineMonitor>(note.line, after);
+      entry.monitor = std::make_unique<LineMonitor>(note.line, after, &designs_);
       MakeCompliance(entry, after);
       notes.push_back(std::move(note));
     } else if (!SameDetection(before, after)) {
@@ -152,8 +152,8 @@ Plant::Accepted Plant::Accept(const RecordView& record, std::int64_t index, std:
   }
   monitor.Push(pack, out);
   if (entry->compliance) entry->compliance->Push(pack, out, &closed_lots_);
-  earliest_silence_deadline_ms_ = std::min(
-      earliest_silence_deadline_ms_, monitor.last_time_ms() + monitor.settings().silence_ms);
+  earliest_silence_deadline_ms_ = std::min(earliest_silence_deadline_ms_,
+                                           monitor.last_time_ms() + monitor.settings().silence_ms);
   entry->last_arrival_ms = arrival_ms;
   return Accepted::kYes;
 }
@@ -177,9 +177,9 @@ void Plant::CloseAllLots(bool partial) {
 }
 
 bool Plant::CloseLot(std::string_view line, bool partial) {
-  const auto it = std::lower_bound(
-      index_.begin(), index_.end(), line,
-      [](const auto& entry, std::string_view key) { return entry.first < key; });
+  const auto it =
+      std::lower_bound(index_.begin(), index_.end(), line,
+                       [](const auto& entry, std::string_view key) { return entry.first < key; });
   if (it == index_.end() || it->first != line) return false;
   Entry& entry = monitors_[it->second];
   if (!entry.compliance) return false;

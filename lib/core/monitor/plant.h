@@ -5,13 +5,14 @@
 // AdvanceTo), no I/O, no clocks. Not thread-safe: owned by one ingest strand.
 #pragma once
 
-#include <cstdint>
 #include <climits>
+#include <cstdint>
 #include <memory>
 #include <string>
 #include <string_view>
 #include <vector>
 
+#include "core/detect/design_cache.h"
 #include "core/model/finding.h"
 #include "core/monitor/line_settings.h"
 #include "core/monitor/lot_report.h"
@@ -25,14 +26,14 @@ class LineMonitor;
 // A line's state at a glance, for status pages, metrics and checkpoints.
 struct LineSnapshot {
   std::string line;
-  std::int64_t packs = 0;            // packs accepted since the daemon started
+  std::int64_t packs = 0;  // packs accepted since the daemon started
   std::int64_t last_time_ms = 0;
-  bool settling = true;              // still learning or settling after a start
-  double level_g = 0.0;              // rolling mean
-  double sigma_g = 0.0;              // rolling short-term sigma
-  double baseline_level_g = 0.0;     // in-control level learnt after the start
+  bool settling = true;           // still learning or settling after a start
+  double level_g = 0.0;           // rolling mean
+  double sigma_g = 0.0;           // rolling short-term sigma
+  double baseline_level_g = 0.0;  // in-control level learnt after the start
   double baseline_sigma_g = 0.0;
-  int open_findings = 0;             // findings raised and not yet cleared
+  int open_findings = 0;  // findings raised and not yet cleared
 };
 
 class Plant {
@@ -89,17 +90,18 @@ class Plant {
   struct Entry {
     std::unique_ptr<LineMonitor> monitor;
     std::unique_ptr<LineCompliance> compliance;  // null: no lots for this line
-    std::int64_t last_arrival_ms = 0;  // arrival clock, for AdvanceTo
+    std::int64_t last_arrival_ms = 0;            // arrival clock, for AdvanceTo
   };
   Entry* FindOrCreate(std::string_view line);
   // Builds entry.compliance from the current settings (null when the line keeps no lots).
   void MakeCompliance(Entry& entry, const LineSettings& line_settings);
 
   PlantSettings settings_;
-  std::vector<Entry> monitors_;                       // in order of first appearance
+  DesignCache designs_;          // shared by the line monitors (declared before them)
+  std::vector<Entry> monitors_;  // in order of first appearance
   std::vector<std::pair<std::string, std::size_t>> index_;  // sorted by line id → monitors_
-  std::size_t last_used_ = SIZE_MAX;                  // feeds often repeat a line: skip the search
-  std::int64_t record_clock_ms_ = INT64_MIN;          // latest record time seen
+  std::size_t last_used_ = SIZE_MAX;          // feeds often repeat a line: skip the search
+  std::int64_t record_clock_ms_ = INT64_MIN;  // latest record time seen
   std::int64_t earliest_silence_deadline_ms_ = INT64_MAX;
   std::vector<LotReport> closed_lots_;
   std::vector<std::string> compliance_problems_;

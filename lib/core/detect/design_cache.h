@@ -1,0 +1,28 @@
+// design_cache.h — detector designs computed once per distinct target.
+//
+// An exact design (ARL integral equations, a λ grid for the drift EWMA) takes
+// tens of milliseconds; a plant of many lines with the same settings needs it
+// once, not once per line and start. Keyed by the exact inputs, so a cached
+// design is the very one DesignDetectors would return. Pure; not thread-safe:
+// owned by one Plant and handed to its LineMonitors.
+#pragma once
+
+#include <map>
+#include <tuple>
+
+#include "core/detect/detector_design.h"
+
+namespace heft {
+
+class DesignCache {
+ public:
+  // DesignDetectors(false_alarms_per_day, packs_per_minute, min_shift_sigma), memoised.
+  const DetectorDesign& Get(double false_alarms_per_day, double packs_per_minute,
+                            double min_shift_sigma);
+  std::size_t size() const { return designs_.size(); }
+
+ private:
+  std::map<std::tuple<double, double, double>, DetectorDesign> designs_;
+};
+
+}  // namespace heft
