@@ -113,7 +113,10 @@ std::string Percent(std::int64_t thousandths) {
 }
 
 std::string Tag(const comply::Provenance& p) {
-  std::string text = "[" + std::string(comply::SourceTagName(p.tag)) + "]";
+  // Appended piecewise: GCC 12 warns falsely (-Wrestrict) on "[" + std::string(...).
+  std::string text = "[";
+  text += comply::SourceTagName(p.tag);
+  text += "]";
   if (!p.confirmed) text += " UNCONFIRMED";
   return text;
 }

@@ -261,8 +261,10 @@ bool ReadFeed(const Options& o, std::map<std::string, std::vector<Sample>>* line
   };
   auto on_too_long = [&](std::size_t bytes) {
     header_allowed = false;
-    problem(c->records++, RecordErrorName(RecordError::kTooLong), -1,
-            "(" + std::to_string(bytes) + " bytes)");
+    std::string detail = "(";  // piecewise: GCC 12 warns falsely on "(" + std::string
+    detail += std::to_string(bytes);
+    detail += " bytes)";
+    problem(c->records++, RecordErrorName(RecordError::kTooLong), -1, detail);
   };
   std::vector<char> chunk(1 << 16);
   while (*in) {

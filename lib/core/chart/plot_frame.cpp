@@ -217,9 +217,18 @@ void DrawDiamond(SvgWriter& svg, double cx, double cy, double r, const Paint& pa
 
 void DrawCross(SvgWriter& svg, double cx, double cy, double r, const std::string& colour,
                std::string_view css_class, std::string_view extra_attributes) {
-  const std::string d = "M" + Coord(cx - r) + ' ' + Coord(cy - r) + "L" + Coord(cx + r) + ' ' +
-                        Coord(cy + r) + "M" + Coord(cx - r) + ' ' + Coord(cy + r) + "L" +
-                        Coord(cx + r) + ' ' + Coord(cy - r);
+  // Appended piecewise: GCC 12 warns falsely (-Wrestrict) on "M" + std::string.
+  std::string d;
+  const auto point = [&d](char op, double x, double y) {
+    d += op;
+    d += Coord(x);
+    d += ' ';
+    d += Coord(y);
+  };
+  point('M', cx - r, cy - r);
+  point('L', cx + r, cy + r);
+  point('M', cx - r, cy + r);
+  point('L', cx + r, cy - r);
   svg.Path(d, Paint{colour, "", 2.0, "", 1.0}, css_class, extra_attributes);
 }
 

@@ -62,17 +62,21 @@ std::vector<chart::TimeSpan> SettlingSpans(const ReportInput& in) {
       in.from_ms ? *in.from_ms : (in.samples.empty() ? 0 : in.samples.front().time_ms);
   const std::int64_t range_end =
       in.to_ms ? *in.to_ms : (in.samples.empty() ? 0 : in.samples.back().time_ms);
-  std::optional<std::int64_t> open;
+  // A plain flag and value rather than std::optional: GCC 12 warns falsely
+  // (-Wmaybe-uninitialized) on the optional's value once this is inlined.
+  bool open = false;
+  std::int64_t open_ms = 0;
   for (const HistoryEvent& e : in.events) {
     if (e.finding.kind != FindingKind::kSettling) continue;
     if (e.finding.transition == Transition::kRaised) {
-      if (!open) open = e.finding.onset_time_ms.value_or(e.finding.at_time_ms);
+      if (!open) open_ms = e.finding.onset_time_ms.value_or(e.finding.at_time_ms);
+      open = true;
     } else {
-      spans.push_back({open.value_or(range_start), e.finding.at_time_ms});
-      open.reset();
+      spans.push_back({open ? open_ms : range_start, e.finding.at_time_ms});
+      open = false;
     }
   }
-  if (open) spans.push_back({*open, std::max(range_end, *open)});
+  if (open) spans.push_back({open_ms, std::max(range_end, open_ms)});
   return spans;
 }
 
