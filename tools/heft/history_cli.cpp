@@ -16,6 +16,33 @@
 namespace heft::cli {
 namespace fs = std::filesystem;
 
+std::optional<int> ReadHistoryArgs(const Args& args, const char* command, const char* usage,
+                                   bool need_line, std::ostream& out, std::ostream& err,
+                                   HistoryOptions* options) {
+  const auto fail = [&](const std::string& message) {
+    err << "heft " << command << ": " << message << "\n";
+    return 2;
+  };
+  const std::string see = std::string(" (see heft ") + command + " --help)";
+  ArgReader reader(args);
+  while (!reader.Done()) {
+    std::string error;
+    if (reader.Flag("--help") || reader.Flag("-h")) {
+      out << usage;
+      return 0;
+    }
+    if (TakeHistoryOption(reader, options, &error)) {
+      if (!error.empty()) return fail(error);
+      continue;
+    }
+    if (!reader.error.empty()) return fail(reader.error);
+    return fail("unexpected argument '" + reader.Peek() + "'" + see);
+  }
+  if (options->db.empty()) return fail("--db FILE is required" + see);
+  if (need_line && options->line.empty()) return fail("--line L is required" + see);
+  return std::nullopt;
+}
+
 bool TakeHistoryOption(ArgReader& reader, HistoryOptions* options, std::string* error) {
   std::string value;
   const auto time_option = [&](const char* name, std::optional<std::int64_t>* out) {

@@ -30,6 +30,14 @@ struct HistoryOptions {
 // taken. On a bad value returns true and sets *error.
 bool TakeHistoryOption(ArgReader& reader, HistoryOptions* options, std::string* error);
 
+// Reads all of `args` as history options for `heft COMMAND`. Returns nullopt
+// when the command should go on, else its exit code: 0 after printing `usage`
+// for --help, 2 after printing a one-line reason (unknown argument, bad value,
+// missing --db, or missing --line when `need_line`).
+std::optional<int> ReadHistoryArgs(const Args& args, const char* command, const char* usage,
+                                   bool need_line, std::ostream& out, std::ostream& err,
+                                   HistoryOptions* options);
+
 // The display zone: UTC, or the machine's local offset now (--local). A fixed
 // offset is used for the whole output; a range crossing a daylight-saving
 // change shows the offset in force when the command ran.

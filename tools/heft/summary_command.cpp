@@ -44,23 +44,8 @@ std::string F(const std::optional<double>& v, int decimals) {
 }
 
 int RunSummary(const Args& args, std::ostream& out, std::ostream& err) {
-  ArgReader reader(args);
   HistoryOptions options;
-  while (!reader.Done()) {
-    std::string error;
-    if (reader.Flag("--help") || reader.Flag("-h")) {
-      out << kUsage;
-      return 0;
-    }
-    if (TakeHistoryOption(reader, &options, &error)) {
-      if (!error.empty()) return Fail(err, error);
-      continue;
-    }
-    if (!reader.error.empty()) return Fail(err, reader.error);
-    return Fail(err, "unexpected argument '" + reader.Peek() + "' (see heft summary --help)");
-  }
-  if (options.db.empty()) return Fail(err, "--db FILE is required (see heft summary --help)");
-  if (options.line.empty()) return Fail(err, "--line L is required (see heft summary --help)");
+  if (auto done = ReadHistoryArgs(args, "summary", kUsage, true, out, err, &options)) return *done;
 
   std::unique_ptr<HistoryReader> history;
   if (Status s = HistoryReader::Open(options.db, &history); !s.ok()) return Fail(err, s.message());
