@@ -169,6 +169,10 @@ def kill_rounds(args, tmp, feed):
                 h.check(False, "round %d: heftd stops on SIGSTOP" % rnd)
             sender.stop.set()
             sender.join(5)
+            # Let segments still in flight on loopback land in the daemon's receive
+            # queue, where they are counted as unread; otherwise they would count as
+            # read and show up as loss the daemon never had.
+            time.sleep(0.2)
             # Bytes the daemon has not read: those the client kernel has not sent yet
             # (SIOCOUTQNSD; loopback delivers what it sends at once) plus those waiting in
             # the daemon's receive queue (/proc/net/tcp rx_queue). The client's tx_queue
