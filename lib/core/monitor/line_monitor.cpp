@@ -352,8 +352,9 @@ void LineMonitor::UpdateAllowances() {
 }
 
 const LineMonitor::Entry& LineMonitor::Recent(std::size_t back) const {
+  // The ring's size is the periodogram window, a power of two: a mask, not a division.
   const std::size_t cap = ring_.size();
-  return ring_[(ring_next_ + cap - 1 - back) % cap];
+  return ring_[(ring_next_ + cap - 1 - back) & (cap - 1)];
 }
 
 double LineMonitor::PacksPerHour() const {
@@ -398,7 +399,7 @@ void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
   e.index = pack.index;
   e.time_ms = pack.time_ms;
   e.head = pack.head;
-  ring_next_ = (ring_next_ + 1) % ring_.size();
+  ring_next_ = (ring_next_ + 1) & (ring_.size() - 1);
   ring_count_ = std::min(ring_count_ + 1, ring_.size());
   last_z_ = z;
 

@@ -21,12 +21,9 @@ Plant::Entry* Plant::FindOrCreate(std::string_view line) {
   if (last_used_ < monitors_.size() && monitors_[last_used_].monitor->line() == line) {
     return &monitors_[last_used_];
   }
-  auto it =
-      std::lower_bound(index_.begin(), index_.end(), line,
-                       [](const auto& entry, std::string_view key) { return entry.first < key; });
-  if (it != index_.end() && it->first == line) {
-    last_used_ = it->second;
-    return &monitors_[it->second];
+  if (const std::size_t* slot = index_.Find(line)) {
+    last_used_ = *slot;
+    return &monitors_[*slot];
   }
   if (monitors_.size() >= settings_.max_lines) return nullptr;
   const LineSettings& line_settings = SettingsFor(line);
@@ -34,7 +31,7 @@ Plant::Entry* Plant::FindOrCreate(std::string_view line) {
       {std::make_unique<LineMonitor>(std::string(line), line_settings, &designs_), nullptr, 0});
   MakeCompliance(monitors_.back(), line_settings);
   last_used_ = monitors_.size() - 1;
-  index_.insert(it, {std::string(line), last_used_});
+  index_.Insert(line, last_used_);
   return &monitors_.back();
 }
 
@@ -177,11 +174,9 @@ void Plant::CloseAllLots(bool partial) {
 }
 
 bool Plant::CloseLot(std::string_view line, bool partial) {
-  const auto it =
-      std::lower_bound(index_.begin(), index_.end(), line,
-                       [](const auto& entry, std::string_view key) { return entry.first < key; });
-  if (it == index_.end() || it->first != line) return false;
-  Entry& entry = monitors_[it->second];
+  const std::size_t* slot = index_.Find(line);
+  if (slot == nullptr) return false;
+  Entry& entry = monitors_[*slot];
   if (!entry.compliance) return false;
   entry.compliance->CloseLot(partial, &closed_lots_);
   return true;

@@ -14,6 +14,7 @@
 
 #include "core/detect/design_cache.h"
 #include "core/model/finding.h"
+#include "core/monitor/line_index.h"
 #include "core/monitor/line_settings.h"
 #include "core/monitor/lot_report.h"
 #include "core/record/record_view.h"
@@ -99,7 +100,7 @@ class Plant {
   PlantSettings settings_;
   DesignCache designs_;          // shared by the line monitors (declared before them)
   std::vector<Entry> monitors_;  // in order of first appearance
-  std::vector<std::pair<std::string, std::size_t>> index_;  // sorted by line id → monitors_
+  LineIndex index_;                           // line id → monitors_
   std::size_t last_used_ = SIZE_MAX;          // feeds often repeat a line: skip the search
   std::int64_t record_clock_ms_ = INT64_MIN;  // latest record time seen
   std::int64_t earliest_silence_deadline_ms_ = INT64_MAX;
