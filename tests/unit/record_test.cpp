@@ -4,9 +4,11 @@
 
 #include <catch2/catch.hpp>
 
+#include <charconv>
 #include <cstdint>
 #include <cstring>
 #include <limits>
+#include <optional>
 #include <random>
 #include <string>
 #include <string_view>
@@ -512,3 +514,61 @@ TEST_CASE("framer: Finish delivers a pending record once", "[record]") {
 
 }  // namespace
 }  // namespace heft
+
+// The plain-decimal fast path must give the very double std::from_chars gives
+// (the C++ standard's correctly rounded conversion), for every length it takes.
+TEST_CASE("native record: fast decimal path equals from_chars", "[record]") {
+  std::mt19937_64 rng(20261202);
+  std::uniform_int_distribution<int> length(1, 17), frac(0, 16), digit(0, 9), sign(0, 3);
+  for (int trial = 0; trial < 200000; ++trial) {
+    std::string text = sign(rng) == 0 ? "-" : "";
+    const int int_digits = length(rng);
+    for (int i = 0; i < int_digits; ++i) text += static_cast<char>('0' + digit(rng));
+    const int fraction = frac(rng);
+    if (fraction > 0) {
+      text += '.';
+      for (int i = 0; i < fraction; ++i) text += static_cast<char>('0' + digit(rng));
+    }
+    double expected = 0.0;
+    const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), expected);
+    REQUIRE(ec == std::errc());
+    REQUIRE(end == text.data() + text.size());
+    const std::optional<double> got = heft::ParseWeightGrams(text);
+    INFO(text);
+    REQUIRE(got.has_value());
+    CHECK(std::memcmp(&*got, &expected, sizeof expected) == 0);  // bit for bit, -0 too
+  }
+}
+
+// The word-at-a-time scan against the plain rule, byte by byte, on random short
+// records over an alphabet of the bytes that matter (commas, blanks, tab, control,
+// DEL, non-ASCII): binary wins over everything, then blank, then the column count.
+TEST_CASE("native record: word scan agrees with the byte-by-byte rule", "[record]") {
+  const std::string alphabet = std::string("a1.,, \t-") + '\x01' + '\x7f' + '\x80' + '\xff';
+  std::mt19937_64 rng(5);
+  std::uniform_int_distribution<std::size_t> pick(0, alphabet.size() - 1), length(0, 40);
+  for (int trial = 0; trial < 100000; ++trial) {
+    std::string text(length(rng), ' ');
+    for (char& c : text) c = alphabet[pick(rng)];
+    bool binary = false, blank = true;
+    int commas = 0;
+    for (unsigned char c : text) {
+      binary = binary || (c < 0x20 && c != '\t') || c >= 0x7F;
+      blank = blank && (c == ' ' || c == '\t');
+      commas += c == ',';
+    }
+    heft::RecordView record;
+    const heft::RecordParse parse = heft::ParseNativeRecord(text, &record);
+    INFO(text);
+    if (binary) {
+      CHECK(parse.error == heft::RecordError::kBinary);
+    } else if (blank) {
+      CHECK(parse.error == heft::RecordError::kEmpty);
+    } else if (commas != 3 && commas != 4) {
+      CHECK(parse.error == heft::RecordError::kColumnCount);
+    } else {
+      CHECK(parse.error != heft::RecordError::kBinary);
+      CHECK(parse.error != heft::RecordError::kColumnCount);
+    }
+  }
+}

@@ -5,9 +5,12 @@
 #include "core/record/native_record.h"
 
 #include <array>
+#include <bit>
 #include <charconv>
 #include <cmath>
 #include <cstddef>
+#include <cstdint>
+#include <cstring>
 #include <system_error>
 
 namespace heft {
@@ -127,6 +130,41 @@ std::optional<std::int64_t> ParseEpochMs(std::string_view s) {
 
 enum class WeightError { kNone, kNumber, kUnit };
 
+// Clinger's fast path for the common "-ddd.dd": with at most 15 significant digits
+// the digits form an exact integer, 10^f is exact for f <= 15, and one IEEE division
+// of two exact values is correctly rounded, so the result equals std::from_chars's.
+// Returns the characters used, or 0 when the text needs the general parser.
+std::size_t ParsePlainDecimal(std::string_view s, double* value) {
+  static constexpr double kPow10[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6, 1e7,
+                                      1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+  std::size_t i = 0;
+  const bool negative = !s.empty() && s[0] == '-';
+  if (negative) ++i;
+  std::int64_t mantissa = 0;
+  int digits = 0, fraction_digits = 0;
+  const std::size_t int_start = i;
+  while (i < s.size() && IsDigit(s[i])) {
+    mantissa = mantissa * 10 + (s[i++] - '0');
+    ++digits;
+    if (digits > 15) return 0;
+  }
+  if (i == int_start) return 0;  // ".5", "-": the general parser decides
+  if (i < s.size() && s[i] == '.') {
+    const std::size_t frac_start = ++i;
+    while (i < s.size() && IsDigit(s[i])) {
+      mantissa = mantissa * 10 + (s[i++] - '0');
+      ++digits;
+      if (digits > 15) return 0;
+    }
+    fraction_digits = static_cast<int>(i - frac_start);
+    if (fraction_digits == 0) return 0;  // "5."
+  }
+  if (i < s.size() && (s[i] == 'e' || s[i] == 'E')) return 0;
+  const double magnitude = static_cast<double>(mantissa) / kPow10[fraction_digits];
+  *value = negative ? -magnitude : magnitude;
+  return i;
+}
+
 WeightError ParseWeight(std::string_view s, double* grams) {
   s = Trim(s);
   if (s.empty()) return WeightError::kNumber;
@@ -135,9 +173,17 @@ WeightError ParseWeight(std::string_view s, double* grams) {
   const char first = s.front();
   if (!IsDigit(first) && first != '-' && first != '.') return WeightError::kNumber;
   double value = 0.0;
-  const auto [end, ec] = std::from_chars(s.data(), s.data() + s.size(), value);
-  if (ec != std::errc() || !std::isfinite(value)) return WeightError::kNumber;
-  std::string_view unit = Trim(s.substr(static_cast<std::size_t>(end - s.data())));
+  std::size_t used = ParsePlainDecimal(s, &value);
+  if (used == 0) {
+    const auto [end, ec] = std::from_chars(s.data(), s.data() + s.size(), value);
+    if (ec != std::errc() || !std::isfinite(value)) return WeightError::kNumber;
+    used = static_cast<std::size_t>(end - s.data());
+  }
+  std::string_view unit = Trim(s.substr(used));
+  if (unit.empty()) {  // grams, the common case
+    *grams = value;
+    return WeightError::kNone;
+  }
   if (unit.empty() || unit == "g") {
     *grams = value;
   } else if (unit == "kg") {
@@ -157,10 +203,17 @@ WeightError ParseWeight(std::string_view s, double* grams) {
   return WeightError::kNone;
 }
 
-bool IsLineIdChar(char c) {
-  return (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || IsDigit(c) || c == '_' || c == '.' ||
-         c == '-';
-}
+// A table, since every record's line id is checked character by character.
+constexpr std::array<bool, 256> kLineIdChars = [] {
+  std::array<bool, 256> table{};
+  for (int c = 0; c < 256; ++c) {
+    table[static_cast<std::size_t>(c)] = (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') ||
+                                         (c >= '0' && c <= '9') || c == '_' || c == '.' || c == '-';
+  }
+  return table;
+}();
+
+bool IsLineIdChar(char c) { return kLineIdChars[static_cast<unsigned char>(c)]; }
 
 bool ParseHead(std::string_view s, int* head) {
   s = Trim(s);
@@ -188,6 +241,50 @@ bool ParseStatus(std::string_view s, PackStatus* status) {
   } else {
     return false;
   }
+  return true;
+}
+
+// One pass over the record, eight bytes at a time: refuses control characters other
+// than tab, DEL and non-ASCII bytes ("has a byte less than / greater than n" word
+// tricks, exact for these n; a word that trips them is checked byte by byte, since tab
+// is allowed), and notes where fields start (exact per-byte comma mask, no carries
+// between bytes). Returns false for a binary record; `fields` counts commas + 1 (it
+// stops counting past `kMaxFields`).
+static_assert(std::endian::native == std::endian::little, "ScanFields reads words little-endian");
+bool ScanFields(std::string_view text, std::array<std::size_t, kMaxFields + 1>* starts,
+                std::size_t* fields) {
+  constexpr std::uint64_t kOnes = 0x0101010101010101ULL, kHighs = 0x8080808080808080ULL;
+  constexpr std::uint64_t kLows = 0x7F7F7F7F7F7F7F7FULL;
+  auto byte_bad = [](unsigned char c) { return (c < 0x20 && c != '\t') || c >= 0x7F; };
+  std::size_t count = 1;
+  auto note_comma = [&](std::size_t at) {
+    if (count <= kMaxFields) (*starts)[count] = at + 1;
+    ++count;
+  };
+  std::size_t i = 0;
+  for (; i + 8 <= text.size(); i += 8) {
+    std::uint64_t x;
+    std::memcpy(&x, text.data() + i, 8);
+    const std::uint64_t below_space = (x - kOnes * 0x20) & ~x & kHighs;
+    const std::uint64_t above_tilde = ((x + kOnes * (127 - 0x7E)) | x) & kHighs;
+    if ((below_space | above_tilde) != 0) {
+      for (std::size_t j = i; j < i + 8; ++j) {
+        if (byte_bad(static_cast<unsigned char>(text[j]))) return false;
+      }
+    }
+    const std::uint64_t y = x ^ (kOnes * ',');  // comma bytes become zero
+    std::uint64_t commas = ~(((y & kLows) + kLows) | y | kLows);
+    while (commas != 0 && count <= kMaxFields) {  // little-endian: lowest byte first
+      note_comma(i + static_cast<std::size_t>(std::countr_zero(commas)) / 8);
+      commas &= commas - 1;
+    }
+  }
+  for (; i < text.size(); ++i) {
+    const auto c = static_cast<unsigned char>(text[i]);
+    if (byte_bad(c)) return false;
+    if (c == ',' && count <= kMaxFields) note_comma(i);
+  }
+  *fields = count;
   return true;
 }
 
@@ -241,21 +338,10 @@ std::string_view RecordErrorName(RecordError error) {
 }
 
 RecordParse ParseNativeRecord(std::string_view text, RecordView* out) {
-  // One pass: refuse non-text bytes, note whether anything but blanks is there,
-  // and find the field boundaries.
   std::array<std::size_t, kMaxFields + 1> starts{};
   std::size_t fields = 1;
-  bool blank = true;
-  for (std::size_t i = 0; i < text.size(); ++i) {
-    const auto c = static_cast<unsigned char>(text[i]);
-    if ((c < 0x20 && c != '\t') || c >= 0x7F) return Fail(RecordError::kBinary, -1);
-    if (c == ',') {
-      if (fields < kMaxFields + 1) starts[fields] = i + 1;
-      ++fields;
-    }
-    if (c != ' ' && c != '\t') blank = false;
-  }
-  if (blank) return Fail(RecordError::kEmpty, -1);
+  if (!ScanFields(text, &starts, &fields)) return Fail(RecordError::kBinary, -1);
+  if (fields == 1 && Trim(text).empty()) return Fail(RecordError::kEmpty, -1);
   if (fields != 4 && fields != 5) return Fail(RecordError::kColumnCount, -1);
   starts[fields] = text.size() + 1;  // as if a comma followed the last field
   auto field = [&](std::size_t k) { return text.substr(starts[k], starts[k + 1] - 1 - starts[k]); };
