@@ -82,6 +82,21 @@ TEST_CASE("live risk: lot mean, T1 share and T2 vs scipy", "[comply]") {
   CHECK(*r.p_any_t2 == Approx(4.895243782661198e-07).epsilon(1e-9));
   CHECK(r.p_lot_mean_below_nominal == Approx(1.0));  // mean 8 g under nominal
 
+  // A far tail is given as its Chernoff bound exp(−n·D(q‖p)) once that is under 1e-12:
+  // never below the exact tail, never near an alarm probability. Same lot at mean 493 g
+  // and 493.5 g (scipy 1.10, Debian 12):
+  //   binom.sf(80, 3000, norm.cdf(485, 493.0, 3.5)) = 1.6528411900585172e-12 (bound 2.2e-11:
+  //   above the floor, so the exact tail is kept)
+  //   binom.sf(80, 3000, norm.cdf(485, 493.5, 3.5)) = 1.4195107079311315e-21 (bound 2.306e-20)
+  in.mean_g = 493.0;
+  REQUIRE(EstimateRisk(l, 0.025, in, &r).ok());
+  CHECK(*r.p_t1_share_exceeds == Approx(1.6528411900585172e-12).epsilon(1e-6));
+  in.mean_g = 493.5;
+  REQUIRE(EstimateRisk(l, 0.025, in, &r).ok());
+  CHECK(*r.p_t1_share_exceeds >= 1.4195107079311315e-21);
+  CHECK(*r.p_t1_share_exceeds == Approx(2.3063331302094474e-20).epsilon(1e-6));
+  in.mean_g = 492.0;
+
   // Already more T1 than the whole lot may hold → certain; one T2 seen → certain.
   in.t1_so_far = 91;
   in.t2_so_far = 1;

@@ -26,12 +26,27 @@ RiskInput RiskInputFromLot(const LotFigures& figures, std::int64_t expected_lot_
 }
 
 namespace {
+constexpr double kExactTailFloor = 1e-12;
+
 // P(Binomial(trials, p) > threshold).
 double BinomialUpperTail(std::int64_t trials, double p, std::int64_t threshold) {
   if (threshold < 0) return 1.0;
   if (threshold >= trials) return 0.0;
   if (p <= 0.0) return 0.0;
   if (p >= 1.0) return 1.0;
+  // Chernoff bound P(X >= a) <= exp(-n·D(a/n || p)) for a/n > p (D: the Kullback–Leibler
+  // divergence of two Bernoulli laws). It runs on every assessment and is mostly far
+  // below any alarm probability, so a bound under 1e-12 is returned as it is instead of
+  // the exact but costly incomplete-beta tail: it only ever overstates the risk.
+  const double n = static_cast<double>(trials);
+  const double q = static_cast<double>(threshold + 1) / n;
+  if (q > p) {
+    // At q = 1 the (1 − q) terms vanish (0·log 0 = 0).
+    const double divergence =
+        q * std::log(q / p) + (q < 1.0 ? (1.0 - q) * (std::log1p(-q) - std::log1p(-p)) : 0.0);
+    const double bound = std::exp(-n * divergence);
+    if (bound < kExactTailFloor) return bound;
+  }
   boost::math::binomial_distribution<double> dist(static_cast<double>(trials), p);
   return boost::math::cdf(boost::math::complement(dist, static_cast<double>(threshold)));
 }
