@@ -9,18 +9,21 @@ namespace heft {
 PeriodicityTest::PeriodicityTest(std::size_t window, std::size_t skip_bins) {
   n_ = 16;
   while (n_ < window) n_ *= 2;
-  data_.resize(n_);
-  power_.resize(n_ / 2 + 1);
-  twiddle_.resize(n_ / 2);
-  for (std::size_t k = 0; k < n_ / 2; ++k) {
+  // The N real values are transformed as N/2 complex ones (even samples real, odd
+  // imaginary) and the spectrum untangled afterwards: half the work of a complex FFT.
+  const std::size_t half = n_ / 2;
+  data_.resize(half);
+  power_.resize(half + 1);
+  twiddle_.resize(half);
+  for (std::size_t k = 0; k < half; ++k) {
     const double a = -2.0 * std::numbers::pi * static_cast<double>(k) / static_cast<double>(n_);
     twiddle_[k] = {std::cos(a), std::sin(a)};
   }
   skip_ = std::min(skip_bins, n_ / 4);
-  reversed_.resize(n_);
+  reversed_.resize(half);
   std::size_t bits = 0;
-  while ((std::size_t{1} << bits) < n_) ++bits;
-  for (std::size_t i = 0; i < n_; ++i) {
+  while ((std::size_t{1} << bits) < half) ++bits;
+  for (std::size_t i = 0; i < half; ++i) {
     std::size_t r = 0;
     for (std::size_t b = 0; b < bits; ++b) r |= ((i >> b) & 1u) << (bits - 1 - b);
     reversed_[i] = r;
@@ -41,33 +44,51 @@ PeriodicityResult PeriodicityTest::Evaluate(std::span<const double> values) {
   mean /= dn;
   const double stt = dn * (dn * dn - 1.0) / 12.0;
   const double slope = sty / stt;
-  for (std::size_t i = 0; i < n_; ++i) {
-    data_[reversed_[i]] = {values[i] - mean - slope * (static_cast<double>(i) - t_mean), 0.0};
+  const std::size_t half = n_ / 2;
+  for (std::size_t i = 0; i < half; ++i) {
+    const double even = static_cast<double>(2 * i), odd = even + 1.0;
+    data_[reversed_[i]] = {values[2 * i] - mean - slope * (even - t_mean),
+                           values[2 * i + 1] - mean - slope * (odd - t_mean)};
   }
-  // Iterative Cooley–Tukey; complex products written out (std::complex's operator*
-  // checks for NaN/∞ and is several times slower).
+  // Iterative Cooley–Tukey of size N/2 (its twiddles are every other one of size N);
+  // complex products written out (std::complex's operator* checks for NaN/∞ and is
+  // several times slower).
   std::complex<double>* d = data_.data();
   const std::complex<double>* w = twiddle_.data();
-  for (std::size_t len = 2; len <= n_; len *= 2) {
-    const std::size_t half = len / 2, step = n_ / len;
-    for (std::size_t start = 0; start < n_; start += len) {
-      for (std::size_t j = 0; j < half; ++j) {
+  for (std::size_t len = 2; len <= half; len *= 2) {
+    const std::size_t half_len = len / 2, step = 2 * (half / len);
+    for (std::size_t start = 0; start < half; start += len) {
+      for (std::size_t j = 0; j < half_len; ++j) {
         const double wr = w[j * step].real(), wi = w[j * step].imag();
-        const double xr = d[start + j + half].real(), xi = d[start + j + half].imag();
+        const double xr = d[start + j + half_len].real(), xi = d[start + j + half_len].imag();
         const double tr = wr * xr - wi * xi, ti = wr * xi + wi * xr;
         const double ur = d[start + j].real(), ui = d[start + j].imag();
-        d[start + j + half] = {ur - tr, ui - ti};
+        d[start + j + half_len] = {ur - tr, ui - ti};
         d[start + j] = {ur + tr, ui + ti};
       }
     }
   }
+  // Untangle: with Z the half-size transform, E = (Z[k] + conj Z[N/2−k]) / 2 and
+  // O = (Z[k] − conj Z[N/2−k]) / 2i are the even and odd samples' transforms, and
+  // X[k] = E + W^k·O; X[0] and X[N/2] are the sum and difference of Z[0]'s parts.
+  const double inv_n = 1.0 / static_cast<double>(n_);
+  const double x0 = d[0].real() + d[0].imag(), xn = d[0].real() - d[0].imag();
+  power_[0] = x0 * x0 * inv_n;
+  power_[half] = xn * xn * inv_n;
+  for (std::size_t k = 1; k < half; ++k) {
+    const double ar = d[k].real(), ai = d[k].imag();
+    const double br = d[half - k].real(), bi = -d[half - k].imag();  // conj Z[N/2−k]
+    const double er = 0.5 * (ar + br), ei = 0.5 * (ai + bi);
+    // (a − b) / 2i = (Im(a − b) − i·Re(a − b)) / 2
+    const double orr = 0.5 * (ai - bi), oi = -0.5 * (ar - br);
+    const double wr = w[k].real(), wi = w[k].imag();
+    const double xr = er + wr * orr - wi * oi, xi = ei + wr * oi + wi * orr;
+    power_[k] = (xr * xr + xi * xi) * inv_n;
+  }
   const std::size_t m = n_ / 2 - 1 - skip_;  // interior frequencies searched
   double total = 0.0, best = -1.0;
   std::size_t best_k = skip_ + 1;
-  for (std::size_t k = 0; k <= n_ / 2; ++k) {
-    power_[k] = (data_[k].real() * data_[k].real() + data_[k].imag() * data_[k].imag()) /
-                static_cast<double>(n_);
-    if (k <= skip_ || k == n_ / 2) continue;
+  for (std::size_t k = skip_ + 1; k < half; ++k) {
     total += power_[k];
     if (power_[k] > best) {
       best = power_[k];
