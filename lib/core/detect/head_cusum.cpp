@@ -16,24 +16,18 @@ std::optional<HeadSignal> HeadCusums::Update(int head, double z, std::int64_t in
   if (head < 0 || head >= heads()) return std::nullopt;
   Sums& s = sides_[static_cast<std::size_t>(head)];
   const double k = k_ + std::max(0.0, allowance);
+  // Written as selects rather than branches: in control the sums touch zero at random,
+  // and a mispredicted branch per side costs more than the whole update.
   const double up = s.up + z - k;
-  if (up > 0.0) {
-    if (s.up_run == 0) s.up_onset = index;
-    ++s.up_run;
-    s.up = up;
-  } else {
-    s.up = 0.0;
-    s.up_run = 0;
-  }
+  const bool up_on = up > 0.0;
+  s.up_onset = up_on && s.up_run == 0 ? index : s.up_onset;
+  s.up_run = up_on ? s.up_run + 1 : 0;
+  s.up = up_on ? up : 0.0;
   const double down = s.down - z - k;
-  if (down > 0.0) {
-    if (s.down_run == 0) s.down_onset = index;
-    ++s.down_run;
-    s.down = down;
-  } else {
-    s.down = 0.0;
-    s.down_run = 0;
-  }
+  const bool down_on = down > 0.0;
+  s.down_onset = down_on && s.down_run == 0 ? index : s.down_onset;
+  s.down_run = down_on ? s.down_run + 1 : 0;
+  s.down = down_on ? down : 0.0;
   std::optional<HeadSignal> out;
   if (s.up > h_) {
     out = HeadSignal{head, k + s.up / std::max(1, s.up_run), s.up_onset};

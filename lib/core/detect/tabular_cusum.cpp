@@ -5,24 +5,18 @@
 namespace heft {
 
 TabularCusum::Signal TabularCusum::Update(double z, std::int64_t index) {
+  // Selects rather than branches (see HeadCusums::Update): in control the sums touch
+  // zero at random and mispredicted branches would dominate the update.
   const double up = upper_ + z - k_;
-  if (up > 0.0) {
-    if (upper_ <= 0.0 || upper_run_ == 0) upper_onset_ = index;
-    ++upper_run_;
-    upper_ = up;
-  } else {
-    upper_ = 0.0;
-    upper_run_ = 0;
-  }
+  const bool up_on = up > 0.0;
+  upper_onset_ = up_on && (upper_ <= 0.0 || upper_run_ == 0) ? index : upper_onset_;
+  upper_run_ = up_on ? upper_run_ + 1 : 0;
+  upper_ = up_on ? up : 0.0;
   const double down = lower_ - z - k_;
-  if (down > 0.0) {
-    if (lower_ <= 0.0 || lower_run_ == 0) lower_onset_ = index;
-    ++lower_run_;
-    lower_ = down;
-  } else {
-    lower_ = 0.0;
-    lower_run_ = 0;
-  }
+  const bool down_on = down > 0.0;
+  lower_onset_ = down_on && (lower_ <= 0.0 || lower_run_ == 0) ? index : lower_onset_;
+  lower_run_ = down_on ? lower_run_ + 1 : 0;
+  lower_ = down_on ? down : 0.0;
   if (upper_ > h_) return Signal::kUp;
   if (lower_ > h_) return Signal::kDown;
   return Signal::kNone;
