@@ -572,3 +572,23 @@ TEST_CASE("native record: word scan agrees with the byte-by-byte rule", "[record
     }
   }
 }
+
+// The framer's word-at-a-time terminator search against a plain byte loop, from every
+// start position of random buffers dense in LF, CR and bytes one off from them.
+TEST_CASE("line framer: terminator search agrees with a byte loop", "[record]") {
+  const std::string alphabet = std::string("ab,\n\r") + '\x0b' + '\x0c' + '\x09' + '\x8a' + '\x8d';
+  std::mt19937_64 rng(11);
+  std::uniform_int_distribution<std::size_t> pick(0, alphabet.size() - 1), length(0, 70);
+  std::uniform_int_distribution<int> sparse(0, 9);
+  for (int trial = 0; trial < 20000; ++trial) {
+    std::string bytes(length(rng), 'x');
+    for (char& c : bytes) c = sparse(rng) == 0 ? alphabet[pick(rng)] : 'q';
+    for (std::size_t pos = 0; pos <= bytes.size(); ++pos) {
+      std::size_t expected = pos;
+      while (expected < bytes.size() && bytes[expected] != '\n' && bytes[expected] != '\r') {
+        ++expected;
+      }
+      REQUIRE(heft::LineFramer::FindTerminator(bytes, pos) == expected);
+    }
+  }
+}

@@ -28,14 +28,14 @@ std::optional<HeadSignal> HeadCusums::Update(int head, double z, std::int64_t in
   s.down_onset = down_on && s.down_run == 0 ? index : s.down_onset;
   s.down_run = down_on ? s.down_run + 1 : 0;
   s.down = down_on ? down : 0.0;
-  std::optional<HeadSignal> out;
-  if (s.up > h_) {
-    out = HeadSignal{head, k + s.up / std::max(1, s.up_run), s.up_onset};
-  } else if (s.down > h_) {
-    out = HeadSignal{head, -k - s.down / std::max(1, s.down_run), s.down_onset};
-  }
-  if (out) s = Sums{};
-  return out;
+  // The quiet case returns at once: building the optional on the stack and copying it
+  // out stalled on store forwarding at every pack.
+  if (s.up <= h_ && s.down <= h_) return std::nullopt;
+  const HeadSignal signal =
+      s.up > h_ ? HeadSignal{head, k + s.up / std::max(1, s.up_run), s.up_onset}
+                : HeadSignal{head, -k - s.down / std::max(1, s.down_run), s.down_onset};
+  s = Sums{};
+  return signal;
 }
 
 }  // namespace heft

@@ -26,8 +26,7 @@ std::uint64_t LineIndex::Hash(std::string_view line) {
 const std::size_t* LineIndex::Find(std::string_view line) const {
   if (buckets_.empty()) return nullptr;
   const std::uint64_t h = Hash(line);
-  const std::size_t mask = buckets_.size() - 1;
-  for (std::size_t at = h & mask;; at = (at + 1) & mask) {
+  for (std::size_t at = h & mask_;; at = (at + 1) & mask_) {
     const Bucket& b = buckets_[at];
     if (!b.used) return nullptr;
     if (b.hash == h && b.key == line) return &b.slot;
@@ -37,9 +36,8 @@ const std::size_t* LineIndex::Find(std::string_view line) const {
 void LineIndex::Insert(std::string_view line, std::size_t slot) {
   if (2 * (size_ + 1) > buckets_.size()) Grow();
   const std::uint64_t h = Hash(line);
-  const std::size_t mask = buckets_.size() - 1;
-  std::size_t at = h & mask;
-  while (buckets_[at].used) at = (at + 1) & mask;
+  std::size_t at = h & mask_;
+  while (buckets_[at].used) at = (at + 1) & mask_;
   buckets_[at] = {h, slot, std::string(line), true};
   ++size_;
 }
@@ -47,11 +45,11 @@ void LineIndex::Insert(std::string_view line, std::size_t slot) {
 void LineIndex::Grow() {
   std::vector<Bucket> old = std::exchange(buckets_, std::vector<Bucket>(
                                                         buckets_.empty() ? 16 : 2 * buckets_.size()));
-  const std::size_t mask = buckets_.size() - 1;
+  mask_ = buckets_.size() - 1;
   for (Bucket& b : old) {
     if (!b.used) continue;
-    std::size_t at = b.hash & mask;
-    while (buckets_[at].used) at = (at + 1) & mask;
+    std::size_t at = b.hash & mask_;
+    while (buckets_[at].used) at = (at + 1) & mask_;
     buckets_[at] = std::move(b);
   }
 }

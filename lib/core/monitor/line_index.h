@@ -32,6 +32,7 @@ class LineIndex {
   void Grow();
 
   std::vector<Bucket> buckets_;  // size a power of two, at most half full
+  std::size_t mask_ = 0;         // buckets_.size() − 1
   std::size_t size_ = 0;
 };
 
