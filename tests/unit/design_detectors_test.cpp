@@ -7,7 +7,9 @@
 #include "core/design/arl_design.h"
 #include "core/design/cusum_arl.h"
 #include "core/design/ewma_arl.h"
+#include "core/detect/design_cache.h"
 #include "core/detect/detector_design.h"
+#include "core/detect/ewma_chart.h"
 
 using namespace heft;
 
@@ -89,4 +91,18 @@ TEST_CASE("DesignDetectors is exact for the default targets and never fails", "[
   const Status bad = DesignLineDetectors({0.0, 1.0, 1.0, 0.0, 0.005}, &checked);
   CHECK_FALSE(bad.ok());
   CHECK(bad.message().find("pack rate") != std::string::npos);
+}
+
+TEST_CASE("DesignCache returns the very values it memoises, per distinct input", "[design]") {
+  DesignCache cache;
+  const DetectorDesign& a = cache.Get(1.0, 120.0, 1.0);
+  const DetectorDesign direct = DesignDetectors(1.0, 120.0, 1.0);
+  CHECK(a.cusum_h == direct.cusum_h);
+  CHECK(a.ewma_limit == direct.ewma_limit);
+  CHECK(&cache.Get(1.0, 120.0, 1.0) == &a);  // computed once
+  CHECK(cache.Get(1.0, 60.0, 1.0).arl0_packs == DesignDetectors(1.0, 60.0, 1.0).arl0_packs);
+  CHECK(cache.size() == 2);
+  CHECK(cache.EwmaLimit(0.05, 20000.0) == EwmaChart::LimitForArl(0.05, 20000.0));
+  CHECK(cache.EwmaLimit(0.1, 20000.0) == EwmaChart::LimitForArl(0.1, 20000.0));
+  CHECK(cache.EwmaLimit(0.05, 20000.0) != cache.EwmaLimit(0.1, 20000.0));
 }

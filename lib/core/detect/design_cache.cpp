@@ -1,5 +1,7 @@
 #include "core/detect/design_cache.h"
 
+#include "core/detect/ewma_chart.h"
+
 namespace heft {
 
 const DetectorDesign& DesignCache::Get(double false_alarms_per_day, double packs_per_minute,
@@ -10,6 +12,15 @@ const DetectorDesign& DesignCache::Get(double false_alarms_per_day, double packs
     it = designs_
              .emplace(key, DesignDetectors(false_alarms_per_day, packs_per_minute, min_shift_sigma))
              .first;
+  }
+  return it->second;
+}
+
+double DesignCache::EwmaLimit(double lambda, double arl0) {
+  const auto key = std::make_pair(lambda, arl0);
+  auto it = ewma_limits_.find(key);
+  if (it == ewma_limits_.end()) {
+    it = ewma_limits_.emplace(key, EwmaChart::LimitForArl(lambda, arl0)).first;
   }
   return it->second;
 }

@@ -8,6 +8,7 @@
 #pragma once
 
 #include <map>
+#include <utility>
 #include <tuple>
 
 #include "core/detect/detector_design.h"
@@ -19,10 +20,14 @@ class DesignCache {
   // DesignDetectors(false_alarms_per_day, packs_per_minute, min_shift_sigma), memoised.
   const DetectorDesign& Get(double false_alarms_per_day, double packs_per_minute,
                             double min_shift_sigma);
+  // EwmaChart::LimitForArl(lambda, arl0), memoised: a Brook–Evans solve per line
+  // start was the largest start-up cost left once designs were shared.
+  double EwmaLimit(double lambda, double arl0);
   std::size_t size() const { return designs_.size(); }
 
  private:
   std::map<std::tuple<double, double, double>, DetectorDesign> designs_;
+  std::map<std::pair<double, double>, double> ewma_limits_;
 };
 
 }  // namespace heft
