@@ -83,19 +83,21 @@ bool Digits(std::string_view s, std::size_t pos, std::size_t n, int* value) {
   return true;
 }
 
-// "YYYY-MM-DDTHH:MM:SS[.f{1,9}](Z|+00:00)".
-std::optional<std::int64_t> ParseIsoTime(std::string_view s) {
+// "YYYY-MM-DDTHH:MM:SS[.f{1,9}](Z|+00:00)". The time parsers return a flag and write
+// through a pointer: std::optional<int64_t> came back through the stack with a
+// one-byte store read as eight, a store-forwarding stall on every record.
+bool ParseIsoTime(std::string_view s, std::int64_t* time_ms) {
   int year, month, day, hour, minute, second;
-  if (s.size() < 20) return std::nullopt;
+  if (s.size() < 20) return false;
   if (!Digits(s, 0, 4, &year) || s[4] != '-' || !Digits(s, 5, 2, &month) || s[7] != '-' ||
       !Digits(s, 8, 2, &day) || s[10] != 'T' || !Digits(s, 11, 2, &hour) || s[13] != ':' ||
       !Digits(s, 14, 2, &minute) || s[16] != ':' || !Digits(s, 17, 2, &second)) {
-    return std::nullopt;
+    return false;
   }
   // Leap seconds (:60) are refused: epoch time has no place for them.
   if (month < 1 || month > 12 || day < 1 || day > DaysInMonth(year, month) || hour > 23 ||
       minute > 59 || second > 59) {
-    return std::nullopt;
+    return false;
   }
   std::size_t pos = 19;
   int millis = 0;
@@ -107,25 +109,32 @@ std::optional<std::int64_t> ParseIsoTime(std::string_view s) {
       ++digits;
       ++pos;
     }
-    if (digits == 0 || digits > 9) return std::nullopt;
+    if (digits == 0 || digits > 9) return false;
     for (std::size_t i = digits; i < 3; ++i) millis *= 10;  // ".5" is 500 ms
   }
   const std::string_view zone = s.substr(pos);
-  if (zone != "Z" && zone != "+00:00") return std::nullopt;
+  if (zone != "Z" && zone != "+00:00") return false;
   const std::int64_t days =
       DaysFromCivil(year, static_cast<unsigned>(month), static_cast<unsigned>(day));
-  return days * kMsPerDay + ((hour * 60 + minute) * 60 + second) * std::int64_t{1000} + millis;
+  *time_ms = days * kMsPerDay + ((hour * 60 + minute) * 60 + second) * std::int64_t{1000} + millis;
+  return true;
 }
 
-std::optional<std::int64_t> ParseEpochMs(std::string_view s) {
-  if (s.empty() || s.size() > 15) return std::nullopt;  // kMaxEpochMs has 15 digits
+bool ParseEpochMs(std::string_view s, std::int64_t* time_ms) {
+  if (s.empty() || s.size() > 15) return false;  // kMaxEpochMs has 15 digits
   for (char c : s) {
-    if (!IsDigit(c)) return std::nullopt;
+    if (!IsDigit(c)) return false;
   }
   std::int64_t value = 0;
   const auto [end, ec] = std::from_chars(s.data(), s.data() + s.size(), value);
-  if (ec != std::errc() || end != s.data() + s.size() || value > kMaxEpochMs) return std::nullopt;
-  return value;
+  if (ec != std::errc() || end != s.data() + s.size() || value > kMaxEpochMs) return false;
+  *time_ms = value;
+  return true;
+}
+
+bool ParseTimeInto(std::string_view text, std::int64_t* time_ms) {
+  if (text.size() > 4 && text[4] == '-') return ParseIsoTime(text, time_ms);
+  return ParseEpochMs(text, time_ms);
 }
 
 enum class WeightError { kNone, kNumber, kUnit };
@@ -349,10 +358,8 @@ RecordParse ParseNativeRecord(std::string_view text, RecordView* out) {
   RecordView record;
   const std::string_view time = Trim(field(0));
   if (!time.empty()) {
-    const std::optional<std::int64_t> time_ms = ParseTimeMs(time);
-    if (!time_ms) return Fail(RecordError::kBadTime, 0);
+    if (!ParseTimeInto(time, &record.time_ms)) return Fail(RecordError::kBadTime, 0);
     record.has_time = true;
-    record.time_ms = *time_ms;
   }
   record.line = field(1);
   if (!IsNativeLineId(record.line)) return Fail(RecordError::kBadLine, 1);
@@ -392,8 +399,9 @@ std::optional<double> ParseWeightGrams(std::string_view text) {
 }
 
 std::optional<std::int64_t> ParseTimeMs(std::string_view text) {
-  if (text.size() > 4 && text[4] == '-') return ParseIsoTime(text);
-  return ParseEpochMs(text);
+  std::int64_t time_ms = 0;
+  if (!ParseTimeInto(text, &time_ms)) return std::nullopt;
+  return time_ms;
 }
 
 void FormatTimeMs(std::int64_t time_ms, char (&buffer)[32]) {
