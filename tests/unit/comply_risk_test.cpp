@@ -263,3 +263,24 @@ TEST_CASE("lowering the target until the T1-share alarm fires (pure pieces toget
   CHECK(first_warning_target >= first_alarm_target);
   CHECK(t1_alarm);
 }
+
+TEST_CASE("compliance risk: the current level's own error widens the projection", "[comply]") {
+  // 400 packs at 501 g, σ 4 g, lot of 3600, the last 60 packs average 499.8 g. Final mean
+  // centre (400·501 + 3200·499.8)/3600. scipy 1.10 (Debian 12):
+  //   norm.cdf(500, c, 4·√3200/3600)                                = 0.8555778168267438
+  //   norm.cdf(500, c, √(16·3200/3600² + (3200/3600)²·16/60))       = 0.5572079656151763
+  // A level 0.2 g under the nominal, known from 60 packs, is no near-certainty.
+  const NetContentLimits l = Limits500();
+  RiskInput in;
+  in.packs = 400;
+  in.mean_g = 501.0;
+  in.sigma_g = 4.0;
+  in.expected_lot_packs = 3600;
+  in.current_level_g = 499.8;
+  ComplianceRisk r;
+  REQUIRE(EstimateRisk(l, 0.025, in, &r).ok());
+  CHECK(r.p_lot_mean_below_nominal == Approx(0.8555778168267438).epsilon(1e-9));
+  in.current_level_packs = 60;
+  REQUIRE(EstimateRisk(l, 0.025, in, &r).ok());
+  CHECK(r.p_lot_mean_below_nominal == Approx(0.5572079656151763).epsilon(1e-9));
+}

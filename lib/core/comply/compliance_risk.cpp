@@ -81,9 +81,17 @@ Status EstimateRisk(const NetContentLimits& limits, std::optional<double> t1_sha
   if (risk.remaining == 0) {
     risk.p_lot_mean_below_nominal = m < limits.nominal_g ? 1.0 : 0.0;
   } else if (input.current_level_g) {
-    // Final mean ~ N((n·x̄ + R·ℓ)/N, σ²·R/N²).
+    // Final mean ~ N((n·x̄ + R·ℓ)/N, σ²·R/N² + (R/N)²·σ²/m): the packs still to come
+    // scatter about ℓ, and ℓ itself, a mean of m packs, is off by about σ/√m. Without
+    // that second term a level a hair either side of the nominal swings the
+    // probability from near 0 to near 1 and the finding chatters.
     const double centre = (n_d * m + r_d * level) / total_d;
-    const double sd = sigma * std::sqrt(r_d) / total_d;
+    double variance = sigma * sigma * r_d / (total_d * total_d);
+    if (input.current_level_packs > 0) {
+      const double share = r_d / total_d;
+      variance += share * share * sigma * sigma / static_cast<double>(input.current_level_packs);
+    }
+    const double sd = std::sqrt(variance);
     risk.p_lot_mean_below_nominal = NormalFractionBelow(limits.nominal_g, centre, sd);
   } else {
     // Final mean ~ N(x̄, σ²·R/(n·N)).

@@ -40,6 +40,9 @@ struct RiskInput {
   std::int64_t t2_so_far = 0;
   std::int64_t expected_lot_packs = 0;    // N; for time lots the caller estimates it from the rate
   std::optional<double> current_level_g;  // the line's level now, if known (see above)
+  // Packs current_level_g was averaged over; its error, σ²/m, is part of the projected
+  // mean's spread. 0 takes the level as exact.
+  std::int64_t current_level_packs = 0;
 };
 
 // Builds the input from a lot's figures. σ = max(s, short-term sigma): the

@@ -183,6 +183,7 @@ void LineCompliance::Assess(const Pack& pack, std::vector<Finding>* out) {
     comply::RiskInput input = comply::RiskInputFromLot(figures, ExpectedLotPacks(figures));
     if (level_count_ == kLevelWindowPacks) {
       input.current_level_g = level_sum_ / static_cast<double>(kLevelWindowPacks);
+      input.current_level_packs = kLevelWindowPacks;
     }
     if (!comply::EstimateRisk(limits_, t1_share_limit_, input, &risk).ok()) {
       risk = comply::ComplianceRisk{};
