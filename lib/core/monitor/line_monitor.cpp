@@ -118,6 +118,7 @@ Finding LineMonitor::Make(Transition transition, FindingKind kind, Severity seve
 void LineMonitor::Emit(Finding finding, std::vector<Finding>* out) {
   const int slot = Slot(finding.kind);
   open_[slot] = finding.transition == Transition::kRaised;
+  if (finding.kind == FindingKind::kOscillation && !open_[slot]) off_head_ = -1;
   if (open_[slot]) {
     raised_at_[slot] = finding.at;
     raised_at_pack_[slot] = packs_;
@@ -408,7 +409,7 @@ void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
   RunMean(pack, z, out);
   RunHeads(pack, z, out);
   RunSubgroup(pack, z, out);
-  RunSpread(pack, z, out);
+  RunSpread(pack, pack.head == off_head_ && off_head_ >= 0 ? z - off_head_shift_ : z, out);
   RunCycles(pack, out);
   RefreshBaseline(pack, !outlier);
 }
@@ -626,6 +627,8 @@ void LineMonitor::RunHeads(const Pack& pack, double z, std::vector<Finding>* out
   raised.size_g = *raised.size_sigma * baseline_.sigma();
   raised.level_g = baseline_.level() + baseline_.offset(s->head) + *raised.size_g;
   raised.detector = "head_cusum";
+  off_head_ = s->head;
+  off_head_shift_ = s->shift;
   Emit(std::move(raised), out);
 }
 

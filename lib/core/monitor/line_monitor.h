@@ -180,6 +180,11 @@ class LineMonitor {
   double head_h_ = 6.0;
   HeadCusums head_cusums_;
   std::vector<double> head_allow_;  // per-head offset standard errors, σ units
+  // The head named by the open oscillation finding and how far it sits from the other
+  // heads (z units): the spread detector sees that head's packs re-centred, so one
+  // bad head, already reported, does not also read as rising spread over and over.
+  int off_head_ = -1;
+  double off_head_shift_ = 0.0;
   int subgroup_n_ = 5;
   int subgroup_count_ = 0;
   double subgroup_sum_ = 0.0;

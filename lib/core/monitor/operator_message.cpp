@@ -101,11 +101,30 @@ std::string OperatorMessage(const Finding& f, const LineSettings& line) {
       return where + "level drifting" + how + Since(f) + "." + Effect(f, line) +
              " Check first: product density, hopper level.";
     }
-    case FindingKind::kOscillation:
-      return where + (raised ? "weights swinging" + Since(f) +
-                                   ". Check first: one head's valve or nozzle; the fill "
-                                   "controller's gain."
-                             : "swing has stopped.");
+    case FindingKind::kOscillation: {
+      if (!raised) return where + "swing has stopped.";
+      if (f.head && f.size_g) {  // one head off against the others of its turn
+        return where + "fills " + Grams(std::fabs(*f.size_g)) +
+               (*f.size_g < 0 ? " light" : " heavy") +
+               (f.size_sigma ? " (" + Sigma(*f.size_sigma) + ")" : "") +
+               " against the other heads" + Since(f) +
+               ". Check first: this head's valve or nozzle, then product build-up on it.";
+      }
+      char period[96] = "";
+      if (f.period_packs && f.period_s) {
+        std::snprintf(period, sizeof period, " every %.0f packs (about %.0f s)", *f.period_packs,
+                      *f.period_s);
+      } else if (f.period_packs) {
+        std::snprintf(period, sizeof period, " every %.0f packs", *f.period_packs);
+      }
+      const std::string amount =
+          f.size_g ? ", about " + Grams(std::fabs(*f.size_g)) + " either way" : "";
+      const bool alternating = f.period_packs && *f.period_packs < 2.5;
+      return where + "weights swinging" + period + amount + Since(f) + "." +
+             (alternating ? " Check first: neighbouring heads or lanes that fill differently."
+                          : " Check first: the fill-weight controller's gain (hunting), then "
+                            "one head's valve or nozzle.");
+    }
     case FindingKind::kSpread:
       return where + (raised
                           ? "spread rising" + Since(f) + ". Check first: worn valves, product flow."
