@@ -119,6 +119,7 @@ void LineMonitor::Emit(Finding finding, std::vector<Finding>* out) {
   const int slot = Slot(finding.kind);
   open_[slot] = finding.transition == Transition::kRaised;
   if (finding.kind == FindingKind::kOscillation && !open_[slot]) off_head_ = -1;
+  if (finding.kind == FindingKind::kSpread && !open_[slot]) spread_scale_ = 1.0;
   if (open_[slot]) {
     raised_at_[slot] = finding.at;
     raised_at_pack_[slot] = packs_;
@@ -406,9 +407,10 @@ void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
   ring_count_ = std::min(ring_count_ + 1, ring_.size());
   last_z_ = z;
 
-  RunMean(pack, z, out);
-  RunHeads(pack, z, out);
-  RunSubgroup(pack, z, out);
+  const double z_mean = z / spread_scale_;
+  RunMean(pack, z_mean, out);
+  RunHeads(pack, z_mean, out);
+  RunSubgroup(pack, z_mean, out);
   RunSpread(pack, pack.head == off_head_ && off_head_ >= 0 ? z - off_head_shift_ : z, out);
   RunCycles(pack, out);
   RefreshBaseline(pack, !outlier);
@@ -729,6 +731,7 @@ void LineMonitor::RunSpread(const Pack& pack, double z, std::vector<Finding>* ou
   raised.size_sigma = ratio - 1.0;
   raised.detector = "log_variance_cusum";
   Emit(std::move(raised), out);
+  spread_scale_ = std::max(1.0, ratio);
   spread_.Reset();
 }
 

@@ -185,6 +185,10 @@ class LineMonitor {
   // bad head, already reported, does not also read as rising spread over and over.
   int off_head_ = -1;
   double off_head_shift_ = 0.0;
+  // While a spread finding is open, the sigma ratio it measured: the mean and head
+  // detectors judge residuals against the wider spread, so more scatter, already
+  // reported, does not also read as shifts and bad heads.
+  double spread_scale_ = 1.0;
   int subgroup_n_ = 5;
   int subgroup_count_ = 0;
   double subgroup_sum_ = 0.0;
