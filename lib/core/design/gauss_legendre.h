@@ -5,7 +5,7 @@
 // Nyström method on these nodes. Nodes come from Newton's method on the
 // Legendre polynomial Pₙ started at the Chebyshev-like guesses
 // cos(π(i − ¼)/(n + ½)) (Abramowitz & Stegun 25.4.29 / Numerical Recipes
-// §4.6). Pure; thread-safe.
+// §4.6), once per point count and thread (memoised). Pure; thread-safe.
 #pragma once
 
 #include <vector>
