@@ -5,21 +5,29 @@
 namespace heft {
 
 TabularCusum::Signal TabularCusum::Update(double z, std::int64_t index) {
-  // Selects rather than branches (see HeadCusums::Update): in control the sums touch
-  // zero at random and mispredicted branches would dominate the update.
+  const Signal up = UpdateUpper(z, index);
+  const Signal down = UpdateLower(z, index);
+  return up != Signal::kNone ? up : down;
+}
+
+// Selects rather than branches: in control the sums touch zero at random and
+// mispredicted branches would dominate the update.
+TabularCusum::Signal TabularCusum::UpdateUpper(double z, std::int64_t index) {
   const double up = upper_ + z - k_;
   const bool up_on = up > 0.0;
   upper_onset_ = up_on && (upper_ <= 0.0 || upper_run_ == 0) ? index : upper_onset_;
   upper_run_ = up_on ? upper_run_ + 1 : 0;
   upper_ = up_on ? up : 0.0;
+  return upper_ > h_ ? Signal::kUp : Signal::kNone;
+}
+
+TabularCusum::Signal TabularCusum::UpdateLower(double z, std::int64_t index) {
   const double down = lower_ - z - k_;
   const bool down_on = down > 0.0;
   lower_onset_ = down_on && (lower_ <= 0.0 || lower_run_ == 0) ? index : lower_onset_;
   lower_run_ = down_on ? lower_run_ + 1 : 0;
   lower_ = down_on ? down : 0.0;
-  if (upper_ > h_) return Signal::kUp;
-  if (lower_ > h_) return Signal::kDown;
-  return Signal::kNone;
+  return lower_ > h_ ? Signal::kDown : Signal::kNone;
 }
 
 void TabularCusum::Reset(double head_start) {

@@ -20,6 +20,10 @@ class TabularCusum {
 
   // Standardised value z = (x − μ0)/σ of the record at `index`.
   Signal Update(double z, std::int64_t index);
+  // One side only (the other sum is left as it is), for a caller that keeps one CUSUM
+  // per side with its own allowance: kUp / kDown when that side is over h.
+  Signal UpdateUpper(double z, std::int64_t index);
+  Signal UpdateLower(double z, std::int64_t index);
   // Restart both sums at `head_start` (0 for none; commonly h/2).
   void Reset(double head_start = 0.0);
 

@@ -438,8 +438,8 @@ void LineMonitor::RunMean(const Pack& pack, double z, std::vector<Finding>* out)
     return;
   }
   const double zc = z / inflation_;
-  cusum_up_.Update(zc - level_allow_, pack.index);
-  cusum_down_.Update(zc + level_allow_, pack.index);
+  cusum_up_.UpdateUpper(zc - level_allow_, pack.index);
+  cusum_down_.UpdateLower(zc + level_allow_, pack.index);
   const EwmaChart::Signal ew = ewma_.Update(zc, level_allow_);
   if (cusum_up_.upper() > cusum_h_) {
     RaiseMean(pack, "cusum", +1,
