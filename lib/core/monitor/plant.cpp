@@ -18,20 +18,13 @@ const LineSettings& Plant::SettingsFor(std::string_view line) const {
 }
 
 Plant::Entry* Plant::FindOrCreate(std::string_view line) {
-  if (last_used_ < monitors_.size() && monitors_[last_used_].monitor->line() == line) {
-    return &monitors_[last_used_];
-  }
-  if (const std::size_t* slot = index_.Find(line)) {
-    last_used_ = *slot;
-    return &monitors_[*slot];
-  }
+  if (const std::size_t* slot = index_.Find(line)) return &monitors_[*slot];
   if (monitors_.size() >= settings_.max_lines) return nullptr;
   const LineSettings& line_settings = SettingsFor(line);
   monitors_.push_back(
       {std::make_unique<LineMonitor>(std::string(line), line_settings, &designs_), nullptr, 0});
   MakeCompliance(monitors_.back(), line_settings);
-  last_used_ = monitors_.size() - 1;
-  index_.Insert(line, last_used_);
+  index_.Insert(line, monitors_.size() - 1);
   return &monitors_.back();
 }
 

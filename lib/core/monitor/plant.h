@@ -101,7 +101,6 @@ class Plant {
   DesignCache designs_;          // shared by the line monitors (declared before them)
   std::vector<Entry> monitors_;  // in order of first appearance
   LineIndex index_;                           // line id → monitors_
-  std::size_t last_used_ = SIZE_MAX;          // feeds often repeat a line: skip the search
   std::int64_t record_clock_ms_ = INT64_MIN;  // latest record time seen
   std::int64_t earliest_silence_deadline_ms_ = INT64_MAX;
   std::vector<LotReport> closed_lots_;
