@@ -19,6 +19,14 @@ PeriodicityTest::PeriodicityTest(std::size_t window, std::size_t skip_bins) {
     const double a = -2.0 * std::numbers::pi * static_cast<double>(k) / static_cast<double>(n_);
     twiddle_[k] = {std::cos(a), std::sin(a)};
   }
+  // Each butterfly stage's twiddles side by side (stage of length len at offset
+  // len/2 − 1), copied from the table above so the values are the very same: the
+  // inner loop then reads them in order instead of with a stride.
+  stage_twiddle_.clear();
+  for (std::size_t len = 2; len <= half; len *= 2) {
+    const std::size_t step = 2 * (half / len);
+    for (std::size_t j = 0; j < len / 2; ++j) stage_twiddle_.push_back(twiddle_[j * step]);
+  }
   skip_ = std::min(skip_bins, n_ / 4);
   reversed_.resize(half);
   std::size_t bits = 0;
@@ -55,11 +63,18 @@ PeriodicityResult PeriodicityTest::Evaluate(std::span<const double> values) {
   // several times slower).
   std::complex<double>* d = data_.data();
   const std::complex<double>* w = twiddle_.data();
-  for (std::size_t len = 2; len <= half; len *= 2) {
-    const std::size_t half_len = len / 2, step = 2 * (half / len);
+  // First stage: the twiddle is 1.
+  for (std::size_t start = 0; start < half; start += 2) {
+    const std::complex<double> u = d[start], t = d[start + 1];
+    d[start] = {u.real() + t.real(), u.imag() + t.imag()};
+    d[start + 1] = {u.real() - t.real(), u.imag() - t.imag()};
+  }
+  for (std::size_t len = 4; len <= half; len *= 2) {
+    const std::size_t half_len = len / 2;
+    const std::complex<double>* sw = stage_twiddle_.data() + (half_len - 1);
     for (std::size_t start = 0; start < half; start += len) {
       for (std::size_t j = 0; j < half_len; ++j) {
-        const double wr = w[j * step].real(), wi = w[j * step].imag();
+        const double wr = sw[j].real(), wi = sw[j].imag();
         const double xr = d[start + j + half_len].real(), xi = d[start + j + half_len].imag();
         const double tr = wr * xr - wi * xi, ti = wr * xi + wi * xr;
         const double ur = d[start + j].real(), ui = d[start + j].imag();

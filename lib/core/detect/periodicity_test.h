@@ -46,6 +46,7 @@ class PeriodicityTest {
   std::size_t skip_;
   std::vector<std::complex<double>> data_;
   std::vector<std::complex<double>> twiddle_;
+  std::vector<std::complex<double>> stage_twiddle_;  // per butterfly stage, contiguous
   std::vector<std::size_t> reversed_;
   std::vector<double> power_;
 };
