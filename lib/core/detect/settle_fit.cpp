@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <complex>
 #include <numbers>
 #include <vector>
 
@@ -36,6 +37,62 @@ bool Solve(int dim, double a[3][3], double b[3], double x[3]) {
   return true;
 }
 
+// Terms of a series decaying as dⁱ worth summing: until dⁱ falls under 1e-12 (the
+// rest adds nothing), at most n.
+std::size_t Terms(double d, std::size_t n) {
+  if (!(d > 0.0)) return std::min<std::size_t>(n, 1);
+  if (d >= 1.0) return n;
+  const double t = std::ceil(std::log(1e-12) / std::log(d)) + 1.0;
+  return t >= static_cast<double>(n) ? n : static_cast<std::size_t>(t);
+}
+
+// Σ_{i<m} qⁱ = (1 − qᵐ)/(1 − q), |q| < 1 and q away from 1 (the grids keep it so).
+std::complex<double> GeometricSum(std::complex<double> q, std::size_t m) {
+  const double dm = static_cast<double>(m);
+  const std::complex<double> qm = std::polar(std::pow(std::abs(q), dm), std::arg(q) * dm);
+  return (1.0 - qm) / (1.0 - q);
+}
+
+double GeometricSum(double q, std::size_t m) {
+  return (1.0 - std::pow(q, static_cast<double>(m))) / (1.0 - q);
+}
+
+// Σ_{i<m} yᵢ·zⁱ by Horner's rule: one complex multiply-add per value.
+std::complex<double> Polynomial(const std::vector<double>& y, std::size_t m,
+                                std::complex<double> z) {
+  double re = 0.0, im = 0.0;
+  const double zr = z.real(), zi = z.imag();
+  for (std::size_t i = m; i-- > 0;) {
+    const double nr = re * zr - im * zi + y[i];
+    im = re * zi + im * zr;
+    re = nr;
+  }
+  return {re, im};
+}
+
+// Σ_{i<m} yᵢ·zₖⁱ for several z at once, by Horner's rule: the chains for different z
+// are independent, so the loop over them runs in parallel (and vectorises) instead of
+// waiting on one multiply-add chain.
+void Polynomials(const std::vector<double>& y, std::size_t m, const std::vector<double>& zr,
+                 const std::vector<double>& zi, std::vector<double>* re,
+                 std::vector<double>* im) {
+  const std::size_t k = zr.size();
+  re->assign(k, 0.0);
+  im->assign(k, 0.0);
+  double* __restrict r = re->data();
+  double* __restrict q = im->data();
+  const double* __restrict a = zr.data();
+  const double* __restrict b = zi.data();
+  for (std::size_t i = m; i-- > 0;) {
+    const double yi = y[i];
+    for (std::size_t j = 0; j < k; ++j) {
+      const double nr = r[j] * a[j] - q[j] * b[j] + yi;
+      q[j] = r[j] * b[j] + q[j] * a[j];
+      r[j] = nr;
+    }
+  }
+}
+
 }  // namespace
 
 SettleEstimate EstimateSettling(std::span<const double> series, std::size_t min_after) {
@@ -63,17 +120,13 @@ SettleEstimate EstimateSettling(std::span<const double> series, std::size_t min_
   double level = sy / dn;
 
   // First order: for each τ, x = L + A·rᵗ with r = e^{−1/τ}; 2×2 normal equations.
+  // The sums of rᵗ and r²ᵗ are geometric series in closed form; only Σ yₜrᵗ needs the data.
   const double max_tau = dn / 2.0;
   for (double tau = 1.0; tau <= max_tau; tau *= 1.04) {
     const double r = std::exp(-1.0 / tau);
-    double se = 0.0, see = 0.0, sye = 0.0, f = 1.0;
-    for (std::size_t i = 0; i < n; ++i) {
-      se += f;
-      see += f * f;
-      sye += y[i] * f;
-      f *= r;
-      if (f < 1e-12) break;  // the rest adds nothing
-    }
+    const std::size_t m = Terms(r, n);
+    const double se = GeometricSum(r, m), see = GeometricSum(r * r, m);
+    const double sye = Polynomial(y, m, r).real();
     double a[3][3] = {{dn, se, 0}, {se, see, 0}, {0, 0, 0}};
     double b[3] = {sy, sye, 0};
     double x[3] = {0, 0, 0};
@@ -90,28 +143,35 @@ SettleEstimate EstimateSettling(std::span<const double> series, std::size_t min_
     }
   }
   // Under-damped: x = L + e^{−αt}(a cos ωt + b sin ωt); 3×3 normal equations per (α, ω).
+  // With z = e^{−α+iω} the basis is Re/Im zᵗ: its sums and those of its squares and
+  // product (cos² = (1 + cos 2ωt)/2, …) are geometric series in closed form, and the
+  // data enter once, through Σ yₜzᵗ by Horner's rule. (A loop over t for all seven sums
+  // made this grid most of a line's start-up cost.)
+  std::vector<double> periods, zr, zi, yz_re, yz_im;
   for (double tau = 2.0; tau <= max_tau; tau *= 1.08) {
     const double decay = std::exp(-1.0 / tau);
+    const std::size_t m = Terms(decay, n);
+    const double squares = GeometricSum(decay * decay, m);  // Σ e^{−2αt}
+    periods.clear();
+    zr.clear();
+    zi.clear();
     for (double period = 6.0; period <= std::min(dn / 2.0, 8.0 * tau); period *= 1.05) {
+      const std::complex<double> z = std::polar(decay, 2.0 * std::numbers::pi / period);
+      periods.push_back(period);
+      zr.push_back(z.real());
+      zi.push_back(z.imag());
+    }
+    Polynomials(y, m, zr, zi, &yz_re, &yz_im);
+    for (std::size_t k = 0; k < periods.size(); ++k) {
+      const double period = periods[k];
       const double w = 2.0 * std::numbers::pi / period;
-      const double cw = std::cos(w), sw = std::sin(w);
-      double sc = 0, ss = 0, scc = 0, sss = 0, scs = 0, syc = 0, sys = 0;
-      double env = 1.0, c = 1.0, s = 0.0;
-      for (std::size_t i = 0; i < n; ++i) {
-        const double bc = env * c, bs = env * s;
-        sc += bc;
-        ss += bs;
-        scc += bc * bc;
-        sss += bs * bs;
-        scs += bc * bs;
-        syc += y[i] * bc;
-        sys += y[i] * bs;
-        const double nc = c * cw - s * sw;
-        s = s * cw + c * sw;
-        c = nc;
-        env *= decay;
-        if (env < 1e-12) break;
-      }
+      const std::complex<double> z(zr[k], zi[k]);
+      const std::complex<double> s1 = GeometricSum(z, m);
+      const std::complex<double> s2 = GeometricSum(std::polar(decay * decay, 2.0 * w), m);
+      const double sc = s1.real(), ss = s1.imag();
+      const double scc = 0.5 * (squares + s2.real()), sss = 0.5 * (squares - s2.real());
+      const double scs = 0.5 * s2.imag();
+      const double syc = yz_re[k], sys = yz_im[k];
       double a[3][3] = {{dn, sc, ss}, {sc, scc, scs}, {ss, scs, sss}};
       double b[3] = {sy, syc, sys};
       double x[3] = {0, 0, 0};
