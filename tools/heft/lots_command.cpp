@@ -18,6 +18,7 @@
 #include "core/record/native_record.h"
 #include "io/lot_json.h"
 #include "io/sqlite_store.h"
+#include "record_query_cli.h"
 
 namespace heft::cli {
 namespace {
@@ -167,46 +168,29 @@ void WriteCsv(const std::vector<LotRow>& rows, std::ostream& out) {
 
 int RunLots(const Args& args, std::ostream& out, std::ostream& err) {
   ArgReader reader(args);
-  std::string db_path, line, since_text, until_text, limit_text, format_text;
-  bool have_line = false, have_since = false, have_until = false;
+  RecordQueryOptions options;
   while (!reader.Done()) {
-    std::string value;
+    std::string problem;
     if (reader.Flag("--help") || reader.Flag("-h")) {
       out << kUsage << "\n" << kLotCaution << "\n";
       return 0;
-    } else if (reader.Option("--db", &value)) {
-      db_path = value;
-    } else if (reader.Option("--line", &value)) {
-      line = value;
-      have_line = true;
-    } else if (reader.Option("--since", &value)) {
-      since_text = value;
-      have_since = true;
-    } else if (reader.Option("--until", &value)) {
-      until_text = value;
-      have_until = true;
-    } else if (reader.Option("--limit", &value)) {
-      limit_text = value;
-    } else if (reader.Option("--format", &value)) {
-      format_text = value;
+    } else if (TakeRecordQueryOption(reader, &options, &problem)) {
+      if (!problem.empty()) return Fail(err, problem);
     } else if (!reader.error.empty()) {
       return Fail(err, reader.error);
     } else {
       return Fail(err, "unexpected argument '" + reader.Peek() + "' (see heft lots --help)");
     }
   }
-  if (db_path.empty()) return Fail(err, "--db FILE is required (see heft lots --help)");
+  if (options.db.empty()) return Fail(err, "--db FILE is required (see heft lots --help)");
 
   LotQuery query;
-  if (have_line) query.line = line;
-  std::string problem;
-  if ((have_since && !ParseTimeOption("--since", since_text, &query.since_ms, &problem)) ||
-      (have_until && !ParseTimeOption("--until", until_text, &query.until_ms, &problem)) ||
-      (!limit_text.empty() && !ParseLimitOption(limit_text, &query.limit, &problem))) {
-    return Fail(err, problem);
-  }
-  OutputFormat format = OutputFormat::kTable;
-  if (!ParseFormatOption(format_text, &format, &problem)) return Fail(err, problem);
+  query.line = options.line;
+  query.since_ms = options.since_ms;
+  query.until_ms = options.until_ms;
+  query.limit = options.limit;
+  const OutputFormat format = options.format;
+  const std::string& db_path = options.db;
 
   std::unique_ptr<SqliteStore> store;
   if (Status s = SqliteStore::Open(db_path, SqliteStore::Mode::kReadOnly, &store); !s.ok()) {
