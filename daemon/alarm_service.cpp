@@ -34,6 +34,18 @@ Status AlarmService::Start(const std::string& db_path, const Plant& plant) {
   if (Status s = AlarmStore::Open(db_path, AlarmStore::Mode::kReadWrite, &store_); !s.ok()) {
     return s;
   }
+  // Carry over what an earlier run left unfinished, and its numbering.
+  std::vector<RestoredAlarm> unfinished;
+  std::int64_t last_seq = 0;
+  if (Status s = store_->Unfinished(&unfinished, &last_seq); !s.ok()) {
+    return Status::Error("restoring alarms: " + s.message());
+  }
+  scratch_.clear();
+  book_.Restore(unfinished, last_seq + 1, clock_.NowMs(), &scratch_);
+  if (!unfinished.empty() || last_seq > 0) {
+    spdlog::info("alarms: {} carried over from the last run, sequence continues at {}",
+                 unfinished.size(), book_.next_seq());
+  }
   const Clock* clock = &clock_;
   for (const ChannelSettings& c : settings_.channels) {
     if (c.type == ChannelType::kLog) continue;
@@ -53,6 +65,7 @@ Status AlarmService::Start(const std::string& db_path, const Plant& plant) {
     if (Status s = worker->Start(); !s.ok()) return s;
     workers_.push_back(std::move(worker));
   }
+  Handle(scratch_);  // floods ended by the restart, now that the workers listen
   return Status::Ok();
 }
 

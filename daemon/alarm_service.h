@@ -9,6 +9,8 @@
 // (`heft ack|shelve|unshelve` rows in alarm_requests) are picked up on the
 // tick and applied. Delivery happens on one DeliveryWorker thread per channel
 // (see io/notify/delivery_worker.h), so nothing here waits on a network.
+// Start() restores the alarms an earlier run left unfinished (active,
+// unacknowledged or shelved) into the AlarmBook and continues its sequence.
 // Not thread-safe: io_context thread only (the workers log through post()).
 #pragma once
 

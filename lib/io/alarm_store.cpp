@@ -351,6 +351,49 @@ Status AlarmStore::FindAlarm(const std::string& alarm_id, std::optional<AlarmSta
   return Status::Ok();
 }
 
+Status AlarmStore::Unfinished(std::vector<RestoredAlarm>* out, std::int64_t* last_seq) {
+  out->clear();
+  *last_seq = 0;
+  {
+    // The state a shelved alarm was shelved from is on its latest transition.
+    Stmt st(impl_->db,
+            "SELECT s.alarm_id, s.line, s.area, s.kind, s.head, s.state, s.priority, s.since_ms, "
+            "s.shelved_until_ms, t.from_state FROM alarm_state s LEFT JOIN alarm_transitions t "
+            "ON t.event_id = s.last_event_id WHERE s.state IN ('active_unack', 'active_ack', "
+            "'cleared_unack', 'shelved') ORDER BY s.alarm_id");
+    int rc;
+    while ((rc = st.Step()) == SQLITE_ROW) {
+      RestoredAlarm r;
+      r.alarm_id = st.ColText(0);
+      r.line = st.ColText(1);
+      r.area = st.ColText(2);
+      r.kind = st.ColText(3);
+      if (auto h = st.ColOptInt(4)) r.head = static_cast<int>(*h);
+      const auto state = AlarmStateFromName(st.ColText(5));
+      const auto priority = AlarmPriorityFromName(st.ColText(6));
+      if (!state || !priority) {
+        return Status::Error(
+            fmt::format("{}: alarm_state of {}: unknown state \"{}\" or "
+                        "priority \"{}\"",
+                        impl_->path, r.alarm_id, st.ColText(5), st.ColText(6)));
+      }
+      r.state = *state;
+      r.priority = *priority;
+      r.since_ms = st.ColInt(7);
+      r.shelved_until_ms = st.ColOptInt(8);
+      const auto from = AlarmStateFromName(st.ColText(9));
+      r.shelved_while_active = from && IsActive(*from);
+      out->push_back(std::move(r));
+    }
+    if (rc != SQLITE_DONE) return impl_->Error("reading unfinished alarms");
+  }
+  Stmt st(impl_->db,
+          "SELECT max(CAST(json_extract(json, '$.seq') AS INTEGER)) FROM alarm_transitions");
+  if (st.Step() != SQLITE_ROW) return impl_->Error("reading the last alarm sequence number");
+  *last_seq = st.ColOptInt(0).value_or(0);
+  return Status::Ok();
+}
+
 Status AlarmStore::Transitions(const std::string& alarm_id, std::size_t limit,
                                std::vector<std::string>* out) {
   out->clear();

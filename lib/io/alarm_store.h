@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "core/alarm/alarm_types.h"
+#include "core/alarm/restored_alarm.h"
 #include "core/model/status.h"
 
 namespace heft {
@@ -92,6 +93,10 @@ class AlarmStore {
 
   Status ListAlarms(std::vector<AlarmStateRow>* out);
   Status FindAlarm(const std::string& alarm_id, std::optional<AlarmStateRow>* out);
+  // For a restart (AlarmBook::Restore): the alarms left in active_unack,
+  // active_ack, cleared_unack or shelved, by alarm id, and the highest `seq`
+  // of any stored transition (0 when there is none).
+  Status Unfinished(std::vector<RestoredAlarm>* out, std::int64_t* last_seq);
   // Stored transition JSON, oldest first; alarm_id empty = all.
   Status Transitions(const std::string& alarm_id, std::size_t limit, std::vector<std::string>* out);
 

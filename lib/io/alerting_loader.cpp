@@ -195,7 +195,7 @@ const std::map<std::string_view, std::vector<std::string_view>>& TypeKeys() {
       {"log", {}},
       {"syslog", {"socket", "facility"}},
       {"command", {"argv"}},
-      {"webhook", {"url", "bearer_token"}},
+      {"webhook", {"url", "bearer_token", "tls"}},
       {"mqtt",
        {"host", "port", "client_id", "topic_prefix", "username", "password", "keepalive_s", "tls"}},
   };
@@ -271,12 +271,9 @@ void LoadChannel(Reader& r, const YAML::Node& node, const std::string& path,
       }
     } else if (key == "url") {
       if (r.String(v, m, p, &c.url, false)) {
-        if (c.url.rfind("https://", 0) == 0) {
-          r.Error(m, p,
-                  "https is not supported by this build; use http:// (e.g. to a local TLS "
-                  "forwarding proxy)");
-        } else if (c.url.rfind("http://", 0) != 0 || c.url.size() <= 7) {
-          r.Error(m, p, "must start with http://, got " + Describe(v));
+        const bool https = c.url.rfind("https://", 0) == 0 && c.url.size() > 8;
+        if (!https && (c.url.rfind("http://", 0) != 0 || c.url.size() <= 7)) {
+          r.Error(m, p, "must start with http:// or https://, got " + Describe(v));
         }
       }
     } else if (key == "bearer_token") {
@@ -303,6 +300,23 @@ void LoadChannel(Reader& r, const YAML::Node& node, const std::string& path,
       r.String(v, m, p, &c.password);
     } else if (key == "keepalive_s") {
       r.Integer(v, m, p, 5, 3600, &c.keepalive_s);
+    } else if (key == "tls" && c.type == ChannelType::kWebhook) {
+      // Only the trust anchor: the certificate and host name are always checked
+      // (a self-signed test server: name its own certificate as ca_file).
+      r.Keys(v, p, {"ca_file", "cert_file", "key_file", "insecure"},
+             [&](const std::string& k, const YAML::Node& tv, const std::string& tp,
+                 const YAML::Mark& tm) {
+               if (k == "ca_file") {
+                 r.String(tv, tm, tp, &c.tls.ca_file, false);
+               } else if (k == "insecure") {
+                 r.Error(tm, tp,
+                         "is not offered for webhooks: the server certificate and host name are "
+                         "always verified (for a self-signed server, set ca_file to its "
+                         "certificate)");
+               } else {
+                 r.Error(tm, tp, "client certificates are not supported for webhooks");
+               }
+             });
     } else if (key == "tls") {
       c.tls.enabled = true;
       r.Keys(v, p, {"ca_file", "cert_file", "key_file", "insecure"},
@@ -333,6 +347,12 @@ void LoadChannel(Reader& r, const YAML::Node& node, const std::string& path,
   if (c.type == ChannelType::kWebhook && c.url.empty() && !node["url"]) {
     r.Error(node.Mark(), path, "a webhook channel needs \"url\"");
     return;
+  }
+  if (c.type == ChannelType::kWebhook) {
+    c.tls.enabled = c.url.rfind("https://", 0) == 0;
+    if (node["tls"] && !c.tls.enabled) {
+      r.Error(node["tls"].Mark(), path + ".tls", "applies to https:// URLs only");
+    }
   }
   out->push_back(std::move(c));
 }

@@ -23,12 +23,15 @@ struct ChannelRoute {
 
 enum class ChannelType { kLog, kSyslog, kCommand, kWebhook, kMqtt };
 
-struct MqttTls {
-  bool enabled = false;
-  std::string ca_file;    // empty with enabled = the system CA path
-  std::string cert_file;  // client certificate (optional)
+// TLS of an mqtt channel (`tls:` block) and of an https:// webhook. The
+// server certificate is always verified against ca_file, else the system
+// store (/etc/ssl/certs); its host name too, except with mqtt's `insecure`.
+struct ChannelTls {
+  bool enabled = false;   // mqtt: a `tls:` block is present; webhook: the URL is https://
+  std::string ca_file;    // empty = the system CA store
+  std::string cert_file;  // client certificate (optional; mqtt only)
   std::string key_file;
-  bool insecure = false;  // skip host name verification (test brokers only)
+  bool insecure = false;  // mqtt only: skip host name verification (test brokers only)
 };
 
 struct ChannelSettings {
@@ -49,7 +52,7 @@ struct ChannelSettings {
   std::string username;
   std::string password;
   int keepalive_s = 30;
-  MqttTls tls;
+  ChannelTls tls;
   // syslog
   std::string socket = "/dev/log";
   int facility = 16;  // local0

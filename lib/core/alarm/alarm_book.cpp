@@ -62,9 +62,46 @@ AlarmBook::Entry* AlarmBook::Find(std::string_view alarm_id) {
 }
 
 bool AlarmBook::Hidden(const Entry& e) const {
-  if (e.exempt || e.is_flood) return false;
+  if (e.exempt || e.is_flood || e.carried) return false;
   auto it = lines_.find(e.line);
   return it != lines_.end() && it->second.suppressed;
+}
+
+void AlarmBook::Restore(const std::vector<RestoredAlarm>& alarms, std::int64_t next_seq,
+                        std::int64_t now_ms, std::vector<AlarmTransition>* out) {
+  next_seq_ = std::max(next_seq_, next_seq);
+  for (const RestoredAlarm& r : alarms) {
+    const bool wanted = IsActive(r.state) || r.state == AlarmState::kClearedUnack ||
+                        (r.state == AlarmState::kShelved && r.shelved_until_ms);
+    if (!wanted || r.alarm_id.empty() || entries_.count(r.alarm_id) != 0) continue;
+    Entry e;
+    e.alarm_id = r.alarm_id;
+    e.line = r.line;
+    e.area = r.area;
+    e.kind = r.kind;
+    e.head = r.head;
+    e.is_flood = r.kind == kFloodKind;
+    e.exempt =
+        r.kind == KindName(FindingKind::kSettling) || r.kind == KindName(FindingKind::kSilence);
+    e.carried = !e.is_flood;
+    e.state = r.state;
+    e.priority = r.priority;
+    e.cond = IsActive(r.state) || (r.state == AlarmState::kShelved && r.shelved_while_active);
+    if (r.state == AlarmState::kActiveAck) e.acked_ms = r.since_ms;
+    if (r.state == AlarmState::kClearedUnack) e.last_clear_ms = r.since_ms;
+    if (r.state == AlarmState::kShelved) e.shelved_until_ms = *r.shelved_until_ms;
+    Entry& stored = entries_.emplace(r.alarm_id, std::move(e)).first->second;
+    if (stored.is_flood && IsActive(stored.state)) {
+      // The starts in the window were not kept, so this run is not in flood.
+      stored.cond = false;
+      Emit(stored,
+           stored.state == AlarmState::kActiveAck ? AlarmState::kNormal : AlarmState::kClearedUnack,
+           {.cause = AlarmCause::kSystem,
+            .why = "flood_ended",
+            .note = "not carried over a restart"},
+           now_ms, out);
+    }
+  }
 }
 
 void AlarmBook::OnFindings(const std::vector<Finding>& findings, std::int64_t now_ms,
@@ -99,6 +136,7 @@ void AlarmBook::OnFindings(const std::vector<Finding>& findings, std::int64_t no
 void AlarmBook::Raise(Entry& e, const Finding& f, std::int64_t now,
                       std::vector<AlarmTransition>* out) {
   e.finding = f;
+  e.carried = false;  // a restored alarm with its condition true: attached, nothing new
   const AlarmPriority p = PriorityFor(f);
   if (e.cond) {
     e.off_due.reset();
@@ -129,6 +167,7 @@ void AlarmBook::Raise(Entry& e, const Finding& f, std::int64_t now,
 
 void AlarmBook::Clear(Entry& e, const Finding& f, std::int64_t now,
                       std::vector<AlarmTransition>* out) {
+  e.carried = false;
   if (e.on_due) {
     e.on_due.reset();
     ++counters_.fleeting_dropped;
@@ -188,7 +227,7 @@ void AlarmBook::UpdateSuppression(const std::string& line, std::int64_t now,
   ls.suppressed = want;
   const std::string note = ls.silent ? "line is silent" : "line is settling";
   for (auto& [id, e] : entries_) {
-    if (e.line != line || e.exempt || e.is_flood) continue;
+    if (e.line != line || e.exempt || e.is_flood || e.carried) continue;
     if (want) {
       if (IsActive(e.state)) {
         e.chattering = false;

@@ -22,6 +22,9 @@
 //     flood_window → one `flood_started` summary, then the area's transitions
 //     are held (stored, not annunciated) until fewer than flood_end_below
 //     starts remain in the window (`flood_ended` with the count held).
+//   - restart: Restore() takes the unfinished alarms of an earlier run; they
+//     keep their state, and a raise of the same line, kind and head attaches
+//     to them without a new transition.
 // Pure: time is passed in; no I/O. Not thread-safe: one owner thread.
 #pragma once
 
@@ -35,6 +38,7 @@
 
 #include "core/alarm/alarm_settings.h"
 #include "core/alarm/alarm_types.h"
+#include "core/alarm/restored_alarm.h"
 #include "core/model/finding.h"
 #include "core/model/status.h"
 
@@ -45,6 +49,18 @@ class AlarmBook {
   // `run_id` prefixes event ids ("RUN-SEQ"); `first_seq` is the first sequence
   // number handed out (a restarted daemon continues after its stored ones).
   AlarmBook(AlarmSettings settings, std::string run_id, std::int64_t first_seq = 1);
+
+  // Before the first finding: takes over the alarms an earlier run left in
+  // active_unack, active_ack, cleared_unack or shelved (others are skipped)
+  // and continues the sequence at `next_seq` if that is higher. Their
+  // condition is carried over (true for the active states, the state before
+  // shelving for shelved ones) until a finding of this run raises it (the
+  // alarm is kept as it is: no new transition) or clears it; until then a
+  // line's start-up settling does not suppress them, since it says nothing
+  // about a condition seen before the restart. Flood state is not carried:
+  // an active flood summary ends here (`flood_ended`, into *out).
+  void Restore(const std::vector<RestoredAlarm>& alarms, std::int64_t next_seq, std::int64_t now_ms,
+               std::vector<AlarmTransition>* out);
 
   // One batch of findings (Plant::Accept/AdvanceTo output) at wall time now_ms.
   void OnFindings(const std::vector<Finding>& findings, std::int64_t now_ms,
@@ -91,7 +107,8 @@ class AlarmBook {
     std::string alarm_id, line, area, kind;
     std::optional<int> head;
     bool is_flood = false;
-    bool exempt = false;  // settling/silence alarms: never suppressed by design
+    bool exempt = false;   // settling/silence alarms: never suppressed by design
+    bool carried = false;  // restored; no finding of this run has spoken about it yet
     AlarmState state = AlarmState::kNormal;
     AlarmPriority priority = AlarmPriority::kLow;
     bool cond = false;                    // condition after the delays

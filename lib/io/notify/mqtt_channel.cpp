@@ -15,6 +15,11 @@ namespace heft {
 namespace {
 
 std::once_flag g_lib_init;
+// libmosquitto sets up its OpenSSL state (a UI method) lazily in the first TLS
+// connect, unguarded: two TLS channels connecting at once on their worker
+// threads race there (seen as a leak under LeakSanitizer). TLS connects take
+// turns; plain ones do not need to.
+std::mutex g_tls_connect;
 
 extern "C" void OnConnectTrampoline(mosquitto*, void* self, int rc) {
   static_cast<MqttChannel*>(self)->OnConnect(rc);
@@ -79,7 +84,12 @@ Status MqttChannel::Connect() {
   const std::string status_topic = settings_.topic_prefix + "/status";
   mosquitto_will_set(mosq_, status_topic.c_str(), 7, "offline", 1, true);
   connect_rc_ = -1;
-  int rc = mosquitto_connect(mosq_, settings_.host.c_str(), settings_.port, settings_.keepalive_s);
+  int rc = MOSQ_ERR_SUCCESS;
+  {
+    std::unique_lock<std::mutex> tls_turn(g_tls_connect, std::defer_lock);
+    if (settings_.tls.enabled) tls_turn.lock();
+    rc = mosquitto_connect(mosq_, settings_.host.c_str(), settings_.port, settings_.keepalive_s);
+  }
   if (rc != MOSQ_ERR_SUCCESS) {
     const std::string reason = rc == MOSQ_ERR_ERRNO ? std::strerror(errno) : mosquitto_strerror(rc);
     Drop();
