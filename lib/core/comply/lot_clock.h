@@ -51,6 +51,18 @@ class LotClock {
 
   const LotPolicy& policy() const { return policy_; }
 
+  // Restart checkpoint: where the clock stands, so a restored lot ends where it
+  // would have (the policy comes from the config).
+  struct State {
+    bool started = false;
+    std::optional<std::int64_t> current_period;
+  };
+  State SaveState() const { return {started_, current_period_}; }
+  void RestoreState(const State& s) {
+    started_ = s.started;
+    current_period_ = s.current_period;
+  }
+
  private:
   LotPolicy policy_;
   std::optional<std::int64_t> current_period_;

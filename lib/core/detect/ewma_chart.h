@@ -38,6 +38,18 @@ class EwmaChart {
   // L that gives in-control ARL `arl0` (bisection on Arl, `cells` cells).
   static double LimitForArl(double lambda, double arl0, int cells = 61);
 
+  // Restart checkpoint (line_monitor_checkpoint.h): the running statistics as plain values;
+  // RestoreState(SaveState()) then the same inputs gives the same outputs.
+  struct State {
+    double value = 0.0;
+    long steps = 0;
+  };
+  State SaveState() const { return {value_, steps_}; }
+  void RestoreState(const State& s) {
+    value_ = s.value;
+    steps_ = s.steps;
+  }
+
  private:
   double lambda_;
   double limit_l_;

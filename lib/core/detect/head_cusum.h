@@ -31,12 +31,21 @@ class HeadCusums {
   double upper(int head) const { return sides_[static_cast<std::size_t>(head)].up; }
   double lower(int head) const { return sides_[static_cast<std::size_t>(head)].down; }
 
- private:
+  // Restart checkpoint (line_monitor_checkpoint.h): the running sums as plain values.
   struct Sums {
     double up = 0.0, down = 0.0;
     int up_run = 0, down_run = 0;
     std::int64_t up_onset = 0, down_onset = 0;
   };
+  const std::vector<Sums>& SaveState() const { return sides_; }
+  // False (nothing changed) when the head count differs.
+  bool RestoreState(const std::vector<Sums>& sides) {
+    if (sides.size() != sides_.size()) return false;
+    sides_ = sides;
+    return true;
+  }
+
+ private:
   double k_, h_;
   std::vector<Sums> sides_;
 };

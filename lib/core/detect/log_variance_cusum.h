@@ -38,6 +38,28 @@ class LogVarianceCusum {
   //   1 − 2/(n(n−1)) Σ_{k=1}^{n−1} (n − k) φᵏ.
   static double ExpectedVarianceRatio(int n, double phi);
 
+  // Restart checkpoint (line_monitor_checkpoint.h): the running statistics as plain values;
+  // RestoreState(SaveState()) then the same inputs gives the same outputs.
+  // (mean and sd depend on the variance ratio the line was armed with.)
+  struct State {
+    double mean = 0.0, sd = 1.0, sum = 0.0;
+    int count = 0;
+    double s1 = 0.0, s2 = 0.0, last_ratio = 1.0, smoothed_log = 0.0;
+  };
+  State SaveState() const {
+    return {mean_, sd_, sum_, count_, s1_, s2_, last_ratio_, smoothed_log_};
+  }
+  void RestoreState(const State& s) {
+    mean_ = s.mean;
+    sd_ = s.sd;
+    sum_ = s.sum;
+    count_ = s.count;
+    s1_ = s.s1;
+    s2_ = s.s2;
+    last_ratio_ = s.last_ratio;
+    smoothed_log_ = s.smoothed_log;
+  }
+
  private:
   int n_;
   double k_, h_;

@@ -152,4 +152,54 @@ double RobustBaseline::SigmaRelError() const {
   return dof > 1.0 ? 1.0 / std::sqrt(2.0 * dof) : 1.0;
 }
 
+RobustBaseline::State RobustBaseline::SaveState() const {
+  State s;
+  s.ready = ready_;
+  s.n_heads = n_heads_;
+  s.ref = ref_;
+  s.level = level_;
+  s.sigma = sigma_;
+  s.phi = phi_;
+  s.offsets = offsets_;
+  s.total = total_;
+  s.heads = heads_;
+  s.lag_xy = lag_xy_;
+  s.lag_xx = lag_xx_;
+  s.pending_total = pending_total_;
+  s.pending_heads = pending_heads_;
+  s.pending_xy = pending_xy_;
+  s.pending_xx = pending_xx_;
+  s.last_residual = last_residual_;
+  s.has_last = has_last_;
+  s.excluded = excluded_;
+  return s;
+}
+
+bool RobustBaseline::RestoreState(const State& s) {
+  const auto heads = static_cast<std::size_t>(s.n_heads);
+  if (s.n_heads < 0 || s.offsets.size() != heads || s.heads.size() != heads ||
+      s.pending_heads.size() != heads) {
+    return false;
+  }
+  ready_ = s.ready;
+  n_heads_ = s.n_heads;
+  ref_ = s.ref;
+  level_ = s.level;
+  sigma_ = s.sigma;
+  phi_ = s.phi;
+  offsets_ = s.offsets;
+  total_ = s.total;
+  heads_ = s.heads;
+  lag_xy_ = s.lag_xy;
+  lag_xx_ = s.lag_xx;
+  pending_total_ = s.pending_total;
+  pending_heads_ = s.pending_heads;
+  pending_xy_ = s.pending_xy;
+  pending_xx_ = s.pending_xx;
+  last_residual_ = s.last_residual;
+  has_last_ = s.has_last;
+  excluded_ = static_cast<std::size_t>(s.excluded);
+  return true;
+}
+
 }  // namespace heft

@@ -16,6 +16,7 @@
 #pragma once
 
 #include <cstddef>
+#include <cstdint>
 #include <span>
 #include <vector>
 
@@ -59,7 +60,9 @@ class RobustBaseline {
   // Relative standard error of σ: 1/sqrt(2(n − heads)).
   double SigmaRelError() const;
 
- private:
+  // Restart checkpoint (line_monitor_checkpoint.h): everything learnt and accumulated,
+  // as plain values. RestoreState refuses (false) per-head vectors that do not
+  // match the head count.
   struct Sums {
     double n = 0.0, s = 0.0, ss = 0.0;  // about ref_
     void Add(double x) {
@@ -78,6 +81,24 @@ class RobustBaseline {
       ss *= f;
     }
   };
+  struct State {
+    bool ready = false;
+    int n_heads = 0;
+    double ref = 0.0, level = 0.0, sigma = 0.0, phi = 0.0;
+    std::vector<double> offsets;
+    Sums total;
+    std::vector<Sums> heads;
+    double lag_xy = 0.0, lag_xx = 0.0;
+    Sums pending_total;
+    std::vector<Sums> pending_heads;
+    double pending_xy = 0.0, pending_xx = 0.0, last_residual = 0.0;
+    bool has_last = false;
+    std::uint64_t excluded = 0;
+  };
+  State SaveState() const;
+  bool RestoreState(const State& s);
+
+ private:
   void Recompute();
 
   double max_weight_;

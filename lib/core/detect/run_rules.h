@@ -79,6 +79,36 @@ class RunRules {
   void Reset();
   const RunRuleSettings& settings() const { return s_; }
 
+  // Restart checkpoint (line_monitor_checkpoint.h): the running statistics as plain values;
+  // RestoreState(SaveState()) then the same inputs gives the same outputs.
+  struct State {
+    std::uint32_t far_up = 0, far_down = 0, out_up = 0, out_down = 0;
+    int seen = 0, side_run = 0, trend_run = 0, saw_run = 0, last_move = 0, hug_run = 0,
+        avoid_run = 0;
+    bool avoid_up = false, avoid_down = false;
+    double last = 0.0;
+  };
+  State SaveState() const {
+    return {far_up_,  far_down_,  out_up_,  out_down_,  seen_,     side_run_,   trend_run_,
+            saw_run_, last_move_, hug_run_, avoid_run_, avoid_up_, avoid_down_, last_};
+  }
+  void RestoreState(const State& s) {
+    far_up_ = s.far_up;
+    far_down_ = s.far_down;
+    out_up_ = s.out_up;
+    out_down_ = s.out_down;
+    seen_ = s.seen;
+    side_run_ = s.side_run;
+    trend_run_ = s.trend_run;
+    saw_run_ = s.saw_run;
+    last_move_ = s.last_move;
+    hug_run_ = s.hug_run;
+    avoid_run_ = s.avoid_run;
+    avoid_up_ = s.avoid_up;
+    avoid_down_ = s.avoid_down;
+    last_ = s.last;
+  }
+
  private:
   RunRuleSettings s_;
   std::uint32_t far_up_ = 0, far_down_ = 0;  // bit i: point i steps ago beyond far_sigma

@@ -33,6 +33,26 @@ class StuckReading {
   // Smallest run r ≥ floor with p^{r−1} ≤ chance.
   static int MinRunFor(double repeat_rate, double chance, int floor);
 
+  // Restart checkpoint (line_monitor_checkpoint.h): the running statistics as plain values;
+  // RestoreState(SaveState()) then the same inputs gives the same outputs.
+  struct State {
+    int min_run = 2, run = 0;
+    bool stuck = false;
+    double last = 0.0;
+    bool has_last = false;
+    std::int64_t pairs = 0, repeats = 0;
+  };
+  State SaveState() const { return {min_run_, run_, stuck_, last_, has_last_, pairs_, repeats_}; }
+  void RestoreState(const State& s) {
+    set_min_run(s.min_run);
+    run_ = s.run;
+    stuck_ = s.stuck;
+    last_ = s.last;
+    has_last_ = s.has_last;
+    pairs_ = s.pairs;
+    repeats_ = s.repeats;
+  }
+
  private:
   int min_run_;
   int run_ = 0;

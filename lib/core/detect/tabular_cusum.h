@@ -38,6 +38,25 @@ class TabularCusum {
   double k() const { return k_; }
   double h() const { return h_; }
 
+  // Restart checkpoint (line_monitor_checkpoint.h): the running statistics as plain values;
+  // RestoreState(SaveState()) then the same inputs gives the same outputs.
+  struct State {
+    double upper = 0.0, lower = 0.0;
+    int upper_run = 0, lower_run = 0;
+    std::int64_t upper_onset = 0, lower_onset = 0;
+  };
+  State SaveState() const {
+    return {upper_, lower_, upper_run_, lower_run_, upper_onset_, lower_onset_};
+  }
+  void RestoreState(const State& s) {
+    upper_ = s.upper;
+    lower_ = s.lower;
+    upper_run_ = s.upper_run;
+    lower_run_ = s.lower_run;
+    upper_onset_ = s.upper_onset;
+    lower_onset_ = s.lower_onset;
+  }
+
  private:
   double k_;
   double h_;

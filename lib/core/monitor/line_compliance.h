@@ -39,6 +39,7 @@
 #include "core/model/finding.h"
 #include "core/model/pack.h"
 #include "core/model/status.h"
+#include "core/monitor/line_compliance_checkpoint.h"
 #include "core/monitor/line_settings.h"
 #include "core/monitor/lot_report.h"
 
@@ -73,6 +74,15 @@ class LineCompliance {
 
   // The open lot's report as it stands (not closed), for status pages.
   std::optional<LotReport> CurrentLot() const;
+
+  // Restart checkpoint (line_compliance_checkpoint.h, implemented in
+  // line_compliance_checkpoint.cpp). RestoreCheckpoint REQUIRES a LineCompliance
+  // that has taken no pack; it fails, changing nothing, when the checkpoint was
+  // made under other lot settings (SettingsFingerprint) or is damaged.
+  LineComplianceCheckpoint SaveCheckpoint() const;
+  Status RestoreCheckpoint(const LineComplianceCheckpoint& checkpoint);
+  // The lot settings and limits the figures, verdicts and findings depend on.
+  std::uint64_t SettingsFingerprint() const;
 
   const comply::NetContentLimits& limits() const { return limits_; }
   std::optional<Severity> open_level() const { return raised_; }

@@ -276,8 +276,26 @@ void LineMonitor::FinishSettling(const Pack& pack, std::size_t settle_at,
   baseline_.Learn(std::span<const double>(learn_values_.data() + settle_at, n - settle_at),
                   std::span<const int>(learn_heads_.data() + settle_at, n - settle_at), heads_);
 
-  // Designs that depend on what was learnt.
   inflation_ = baseline_.AutocorrelationInflation();
+  ArmDetectors();
+
+  phase_ = Phase::kRunning;
+  Finding cleared = Make(Transition::kCleared, FindingKind::kSettling, Severity::kInfo, pack);
+  cleared.onset = learn_indexes_.front();
+  cleared.end = learn_indexes_[std::min(settle_at, n - 1)];
+  cleared.level_g = baseline_.level();
+  cleared.detector = "settle_fit";
+  Emit(std::move(cleared), out);
+  learn_values_.clear();
+  learn_heads_.clear();
+  learn_indexes_.clear();
+}
+
+// Designs that depend on what was learnt (heads_, baseline_, inflation_), with
+// every detector at its start. Called at the end of settling and by
+// RestoreCheckpoint (line_monitor_checkpoint.cpp), which then puts the saved
+// statistics back.
+void LineMonitor::ArmDetectors() {
   // The design target is rounded to 5 % of a sigma so that lines whose learnt
   // autocorrelation is nearly the same share one design (each costs milliseconds;
   // 20 lines gave 14 designs at a 1 % grid). Being off by at most 0.025 sigma moves
@@ -334,17 +352,6 @@ void LineMonitor::FinishSettling(const Pack& pack, std::size_t settle_at,
   ring_count_ = ring_next_ = 0;
   last_z_ = 0.0;
   UpdateAllowances();
-
-  phase_ = Phase::kRunning;
-  Finding cleared = Make(Transition::kCleared, FindingKind::kSettling, Severity::kInfo, pack);
-  cleared.onset = learn_indexes_.front();
-  cleared.end = learn_indexes_[std::min(settle_at, n - 1)];
-  cleared.level_g = baseline_.level();
-  cleared.detector = "settle_fit";
-  Emit(std::move(cleared), out);
-  learn_values_.clear();
-  learn_heads_.clear();
-  learn_indexes_.clear();
 }
 
 void LineMonitor::UpdateAllowances() {

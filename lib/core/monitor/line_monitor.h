@@ -45,6 +45,8 @@
 #include "core/detect/tabular_cusum.h"
 #include "core/model/finding.h"
 #include "core/model/pack.h"
+#include "core/model/status.h"
+#include "core/monitor/line_monitor_checkpoint.h"
 #include "core/monitor/line_settings.h"
 #include "core/monitor/plant.h"
 #include "core/stats/rolling_moments.h"
@@ -79,6 +81,15 @@ class LineMonitor {
   double ewma_limit_l() const { return ewma_.limit_l(); }
   const RunRuleSettings& run_rule_settings() const { return rules_.settings(); }
 
+  // Restart checkpoint (line_monitor_checkpoint.h, implemented in
+  // line_monitor_checkpoint.cpp). RestoreCheckpoint REQUIRES a monitor that has
+  // taken no pack; it fails, changing nothing, when the checkpoint was made
+  // under other settings (MonitorSettingsFingerprint) or does not fit them.
+  // A first pack later than the silence gap after the checkpoint's last one
+  // restarts settling as any return after a silence does.
+  LineMonitorCheckpoint SaveCheckpoint() const;
+  Status RestoreCheckpoint(const LineMonitorCheckpoint& checkpoint);
+
  private:
   enum class Phase { kSettling, kRunning };
   struct Entry {         // one running pack in the recent-history ring
@@ -93,6 +104,7 @@ class LineMonitor {
   void Start(const Pack& pack, std::vector<Finding>* out);
   void Learn(const Pack& pack, std::vector<Finding>* out);
   void FinishSettling(const Pack& pack, std::size_t settle_at, std::vector<Finding>* out);
+  void ArmDetectors();
   void Run(const Pack& pack, std::vector<Finding>* out);
   void RunMean(const Pack& pack, double z, std::vector<Finding>* out);
   void RaiseMean(const Pack& pack, const char* detector, int side, double cusum_shift,

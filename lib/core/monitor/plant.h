@@ -15,6 +15,7 @@
 #include "core/detect/design_cache.h"
 #include "core/model/finding.h"
 #include "core/monitor/line_index.h"
+#include "core/monitor/line_checkpoint.h"
 #include "core/monitor/line_settings.h"
 #include "core/monitor/lot_report.h"
 #include "core/record/record_view.h"
@@ -27,7 +28,7 @@ class LineMonitor;
 // A line's state at a glance, for status pages, metrics and checkpoints.
 struct LineSnapshot {
   std::string line;
-  std::int64_t packs = 0;  // packs accepted since the daemon started
+  std::int64_t packs = 0;  // packs accepted (counted on across a restored restart)
   std::int64_t last_time_ms = 0;
   bool settling = true;           // still learning or settling after a start
   double level_g = 0.0;           // rolling mean
@@ -82,6 +83,23 @@ class Plant {
   // built with; where their detection settings changed the note says so (they
   // apply after a restart). Lines first seen later use the new settings.
   std::vector<ReloadNote> Reconfigure(PlantSettings settings);
+
+  // Restart checkpoints (line_checkpoint.h; plant_checkpoint.cpp): one per
+  // line, in order of first appearance.
+  std::vector<LineCheckpoint> SaveCheckpoints() const;
+  // What RestoreCheckpoints did with one line's checkpoint.
+  struct RestoreNote {
+    std::string line;
+    bool monitor_restored = false;  // false: the line settles anew at its next pack
+    bool lot_continued = false;     // the open lot goes on
+    bool lot_closed = false;        // the open lot could not go on: closed as partial
+    std::string what;               // why not, for the log; empty when all was restored
+  };
+  // Into a Plant that has no lines yet (heftd at start, before any source):
+  // recreates each line, restores its monitor and open lot where the settings
+  // still fit, and queues a lot that cannot continue as partial (drain with
+  // TakeClosedLots()). A checkpoint for a line that already exists is skipped.
+  std::vector<RestoreNote> RestoreCheckpoints(const std::vector<LineCheckpoint>& checkpoints);
 
   std::vector<LineSnapshot> Snapshot() const;
   std::size_t line_count() const { return monitors_.size(); }

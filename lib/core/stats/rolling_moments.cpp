@@ -49,6 +49,25 @@ void RollingMoments::Recompute() {
   }
 }
 
+RollingMoments::State RollingMoments::SaveState() const {
+  return {buffer_,           head_,  count_, total_added_, removals_since_recompute_,
+          sums_.SaveState(), sum_mr_};
+}
+
+bool RollingMoments::RestoreState(const State& s) {
+  if (s.buffer.size() != buffer_.size() || s.head >= buffer_.size() || s.count > buffer_.size()) {
+    return false;
+  }
+  buffer_ = s.buffer;
+  head_ = static_cast<std::size_t>(s.head);
+  count_ = static_cast<std::size_t>(s.count);
+  total_added_ = s.total_added;
+  removals_since_recompute_ = static_cast<std::size_t>(s.removals_since_recompute);
+  sums_.RestoreState(s.sums);
+  sum_mr_ = s.sum_mr;
+  return true;
+}
+
 double RollingMoments::Mean() const { return sums_.Mean(count_); }
 
 double RollingMoments::Variance() const { return sums_.Variance(count_); }

@@ -50,6 +50,18 @@ class RollingMoments {
   // The window's values, oldest first (replaces *out).
   void CopyInOrder(std::vector<double>* out) const;
 
+  // Restart checkpoint (line_monitor_checkpoint.h): the running statistics as plain values;
+  // RestoreState(SaveState()) then the same inputs gives the same outputs.
+  // RestoreState refuses (false) a state whose buffer is not this window's size.
+  struct State {
+    std::vector<double> buffer;  // raw ring, capacity() values
+    std::uint64_t head = 0, count = 0, total_added = 0, removals_since_recompute = 0;
+    ShiftedSums::State sums;
+    double sum_mr = 0.0;
+  };
+  State SaveState() const;
+  bool RestoreState(const State& s);
+
  private:
   void Recompute();
 

@@ -53,6 +53,22 @@ class ShiftedSums {
   std::optional<double> Skewness(std::size_t n) const;
   std::optional<double> ExcessKurtosis(std::size_t n) const;
 
+  // Restart checkpoint (line_monitor_checkpoint.h): the running statistics as plain values;
+  // RestoreState(SaveState()) then the same inputs gives the same outputs.
+  struct State {
+    bool has_reference = false;
+    double reference = 0.0, s1 = 0.0, s2 = 0.0, s3 = 0.0, s4 = 0.0;
+  };
+  State SaveState() const { return {has_reference_, reference_, s1_, s2_, s3_, s4_}; }
+  void RestoreState(const State& s) {
+    has_reference_ = s.has_reference;
+    reference_ = s.reference;
+    s1_ = s.s1;
+    s2_ = s.s2;
+    s3_ = s.s3;
+    s4_ = s.s4;
+  }
+
  private:
   // Biased central moments m2, m3, m4 (divisor n); m2 = 0 when cancellation ate it.
   void Central(std::size_t n, double* m2, double* m3, double* m4) const;
