@@ -156,6 +156,27 @@ TEST_CASE("lots: one T2 pack raises an alarm at once and clears once, without ch
   CHECK(closed[1].advice.has_value());
 }
 
+TEST_CASE("lots: a clear still comes when record numbering restarts (reconnect)", "[lots]") {
+  // As above, but the feed reconnects at pack 250 of the stream, so record indexes start
+  // at 0 again while the clear's hold-off is running. The hold-off then counts from the
+  // new numbering; it used to wait until the index passed the old one.
+  LineSettings settings = CountLots(200);
+  std::unique_ptr<LineCompliance> lc;
+  REQUIRE(LineCompliance::Create("oats-1", settings, EuTable(), &lc).ok());
+  std::vector<Finding> findings;
+  std::vector<LotReport> closed;
+  for (std::int64_t i = 0; i < 600; ++i) {
+    double g = (i % 2 == 0) ? 502.0 : 504.0;
+    if (i == 3) g = 460.0;
+    Pack p = At(i, g);
+    if (i >= 250) p.index = i - 250;  // reconnected: indexes from 0, times go on
+    lc->Push(p, &findings, &closed);
+  }
+  REQUIRE(findings.size() == 2);
+  CHECK(findings[1].transition == Transition::kCleared);
+  CHECK(findings[1].at <= settings.compliance_hold_off_packs + 2 * LineCompliance::kAssessEveryPacks);
+}
+
 TEST_CASE("lots: a falling fill raises a warning or alarm on the mean, then clears", "[lots]") {
   LineSettings settings = CountLots(1000);
   std::unique_ptr<LineCompliance> lc;

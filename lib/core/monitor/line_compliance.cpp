@@ -228,7 +228,9 @@ void LineCompliance::Assess(const Pack& pack, std::vector<Finding>* out) {
     low_since_.reset();
     return;
   }
-  if (!low_since_) low_since_ = pack.index;
+  // Record indexes restart at 0 on a reconnect or a restart: the hold-off then counts
+  // from the first record of the new numbering instead of waiting for the old index.
+  if (!low_since_ || pack.index < *low_since_) low_since_ = pack.index;
   // At least the alert's start-up wait plus one assessment, so a new lot's
   // first packs (which cannot say anything yet) never clear an open finding.
   const std::int64_t hold = std::max<std::int64_t>(
