@@ -202,6 +202,30 @@ int BindOptDouble(sqlite3_stmt* stmt, int idx, std::optional<double> value) {
   return value ? sqlite3_bind_double(stmt, idx, *value) : sqlite3_bind_null(stmt, idx);
 }
 
+// Raw samples: columns of one row, and rows per multi-row INSERT (64 x 7 = 448
+// parameters, far below SQLite's limit of 32766).
+constexpr std::size_t kSampleColumns = 7;
+constexpr std::size_t kSampleRowsPerInsert = 64;
+
+std::string SampleInsertSql(std::size_t rows) {
+  std::string sql =
+      "INSERT OR FAIL INTO samples(line, source, record_index, time_ms, grams, head, status) "
+      "VALUES ";
+  for (std::size_t r = 0; r < rows; ++r) sql += r == 0 ? "(?,?,?,?,?,?,?)" : ",(?,?,?,?,?,?,?)";
+  return sql;
+}
+
+// Binds one sample to parameters first+1 .. first+kSampleColumns.
+int BindSample(sqlite3_stmt* stmt, int first, const SampleRow& row) {
+  return BindText(stmt, first + 1, row.line) | BindText(stmt, first + 2, row.source) |
+         sqlite3_bind_int64(stmt, first + 3, row.record_index) |
+         sqlite3_bind_int64(stmt, first + 4, row.time_ms) |
+         sqlite3_bind_double(stmt, first + 5, row.grams) |
+         (row.head != kNoHead ? sqlite3_bind_int(stmt, first + 6, row.head)
+                              : sqlite3_bind_null(stmt, first + 6)) |
+         sqlite3_bind_int(stmt, first + 7, static_cast<int>(row.status));
+}
+
 // One connection with its statement cache. SqliteStore::Impl is this; the
 // helpers below work on it directly.
 struct Connection {
@@ -488,13 +512,17 @@ Status SqliteStore::WriteBatch(const std::vector<EventRow>& events,
       !s.ok()) {
     return s;
   }
-  if (Status s = impl_->Prepare(
-          "INSERT INTO samples(line, source, record_index, time_ms, grams, head, status) "
-          "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7)",
-          &sample_stmt);
-      !s.ok()) {
-    return s;
+  // Samples go kSampleRowsPerInsert to a statement: one VDBE run per 64 rows
+  // instead of per row (the rest one by one). Measured with heft_pipeline_bench
+  // sqlite: about 1.25x the rows/s of single-row inserts. OR FAIL: a multi-row
+  // statement that may ABORT needs a statement journal (spilled to a temp file,
+  // slower than single rows); the transaction rolls back on any error anyway.
+  sqlite3_stmt* samples_stmt = nullptr;
+  if (samples.size() >= kSampleRowsPerInsert) {
+    if (Status s = impl_->Prepare(SampleInsertSql(kSampleRowsPerInsert), &samples_stmt); !s.ok())
+      return s;
   }
+  if (Status s = impl_->Prepare(SampleInsertSql(1), &sample_stmt); !s.ok()) return s;
 
   Transaction txn(*impl_);
   if (Status s = txn.Begin(kOp); !s.ok()) return s;
@@ -519,17 +547,25 @@ Status SqliteStore::WriteBatch(const std::vector<EventRow>& events,
       return impl_->Error(fmt::format("{}: event {} of {}", kOp, i + 1, events.size()));
     }
   }
-  for (std::size_t i = 0; i < samples.size(); ++i) {
-    const SampleRow& row = samples[i];
+  std::size_t i = 0;
+  if (samples_stmt != nullptr) {
+    StatementUse use(samples_stmt);
+    for (; i + kSampleRowsPerInsert <= samples.size(); i += kSampleRowsPerInsert) {
+      int rc = SQLITE_OK;
+      for (std::size_t j = 0; j < kSampleRowsPerInsert; ++j) {
+        rc |= BindSample(samples_stmt, static_cast<int>(j * kSampleColumns), samples[i + j]);
+      }
+      if (rc != SQLITE_OK || sqlite3_step(samples_stmt) != SQLITE_DONE) {
+        return impl_->Error(fmt::format("{}: samples {}-{} of {}", kOp, i + 1,
+                                        i + kSampleRowsPerInsert, samples.size()));
+      }
+      sqlite3_reset(samples_stmt);
+    }
+  }
+  for (; i < samples.size(); ++i) {
     StatementUse use(sample_stmt);
-    std::optional<std::int64_t> head;
-    if (row.head != kNoHead) head = row.head;
-    int rc = BindText(sample_stmt, 1, row.line) | BindText(sample_stmt, 2, row.source) |
-             sqlite3_bind_int64(sample_stmt, 3, row.record_index) |
-             sqlite3_bind_int64(sample_stmt, 4, row.time_ms) |
-             sqlite3_bind_double(sample_stmt, 5, row.grams) | BindOptInt(sample_stmt, 6, head) |
-             sqlite3_bind_int(sample_stmt, 7, static_cast<int>(row.status));
-    if (rc != SQLITE_OK || sqlite3_step(sample_stmt) != SQLITE_DONE) {
+    if (BindSample(sample_stmt, 0, samples[i]) != SQLITE_OK ||
+        sqlite3_step(sample_stmt) != SQLITE_DONE) {
       return impl_->Error(fmt::format("{}: sample {} of {}", kOp, i + 1, samples.size()));
     }
   }

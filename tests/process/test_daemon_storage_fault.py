@@ -70,7 +70,9 @@ def body(args):
                 "a new connection is served while storage fails")
         h.check(daemon.wait_for(r"storage: sample queue full \(%d samples\)" % CAP, 1)
                 is not None, "the sample queue stops at its cap (%d) and says so" % CAP)
-        time.sleep(1.0)  # let a few retries fail
+        # Retries run on heftd's writer thread, each waiting out SQLite's 5 s busy
+        # timeout, so the lock is held long enough for at least one retry to fail too.
+        time.sleep(6.0)
         lock.execute("ROLLBACK")
         print("released the lock")
         recovered = daemon.wait_for(r"storage: writes recovered after (\d+) failed attempts.*; "
