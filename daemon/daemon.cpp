@@ -19,6 +19,7 @@
 #include "source_set.h"
 #include "io/sqlite_store.h"
 #include "alarm_service.h"
+#include "checkpoint_keeper.h"
 #include "line_engine.h"
 #include "sd_notifier.h"
 
@@ -98,8 +99,20 @@ Status Daemon::Start() {
   options.batch_max_rows = storage.batch_max_rows > 0
                                ? static_cast<std::size_t>(storage.batch_max_rows)
                                : std::size_t{1};
-  writer_ = std::make_unique<BatchWriter>(io_, *store_, options);
+  // The writer thread gets a connection of its own: SQLite connections are
+  // opened single-threaded (SQLITE_OPEN_NOMUTEX) and store_ stays on this thread.
+  std::unique_ptr<SqliteStore> writer_sqlite;
+  status = SqliteStore::Open(storage.database, SqliteStore::Mode::kReadWrite, &writer_sqlite);
+  if (!status.ok()) {
+    return Status::Error("cannot open database " + storage.database + ": " + status.message());
+  }
+  writer_store_ = std::move(writer_sqlite);
+  writer_ = std::make_unique<BatchWriter>(io_, *writer_store_, options);
   engine_ = std::make_unique<LineEngine>(config_.plant, *writer_, clock_, storage.raw_samples);
+  // Restart state before anything can ingest (checkpoint_keeper.h).
+  checkpoints_ = std::make_unique<CheckpointKeeper>(*store_, *engine_, *writer_, clock_);
+  status = checkpoints_->Restore();
+  if (!status.ok()) return status;
   alarms_ = std::make_unique<AlarmService>(io_, config_.alerting, clock_);
   status = alarms_->Start(storage.database, engine_->plant());
   if (!status.ok()) return Status::Error("cannot start alarms: " + status.message());
@@ -138,6 +151,7 @@ Status Daemon::Start() {
   // Not at once: a replayed feed with old record times (tests, demos) would
   // lose its samples before anyone looked at them.
   next_prune_ = tick_due_ + kFirstPruneDelay;
+  next_checkpoint_ = tick_due_ + std::chrono::seconds(storage.checkpoint_interval_s);
   status_since_ = tick_due_;
   next_status_ = tick_due_ + kStatusPeriod;
   ArmTick();
@@ -285,6 +299,13 @@ void Daemon::Reload() {
     config_.storage.raw_retention_days = s1.raw_retention_days;
     next_prune_ = std::chrono::steady_clock::now();  // apply at the next tick
   }
+  if (s0.checkpoint_interval_s != s1.checkpoint_interval_s) {
+    spdlog::info("reload: storage.checkpoint_interval_s {} -> {}", s0.checkpoint_interval_s,
+                 s1.checkpoint_interval_s);
+    config_.storage.checkpoint_interval_s = s1.checkpoint_interval_s;
+    next_checkpoint_ =
+        std::chrono::steady_clock::now() + std::chrono::seconds(s1.checkpoint_interval_s);
+  }
   engine_->Reconfigure(fresh.plant);
   config_.plant = std::move(fresh.plant);
   spdlog::info("reload done: {} configured lines", config_.plant.lines.size());
@@ -330,11 +351,19 @@ void Daemon::Shutdown(std::string_view why) {
   if (http_api_) http_api_->Stop();
   server_->Stop();  // sessions finish their ingest: the last findings are queued
   sources_->Stop();  // configured sources too (source_set.h)
-  engine_->CloseAllLots();  // open lots are stored as partial
+  // Open lots and findings continue at the next start; without a checkpoint
+  // the open lots are stored as partial.
+  if (checkpoints_->Save("shutdown")) {
+    spdlog::info("checkpoint saved: {} lines continue at the next start",
+                 engine_->plant().line_count());
+  } else {
+    engine_->CloseAllLots();
+  }
   writer_->Stop();  // the last batch, synchronously
   alarms_->Stop();  // records the last transitions; workers finish their delivery
   const std::size_t unsaved_events = writer_->queued_events();
   const std::size_t unsaved_samples = writer_->queued_samples();
+  writer_store_.reset();
   store_.reset();  // closes the database
 
   const LineEngine::Totals& t = engine_->totals();
@@ -371,6 +400,10 @@ void Daemon::OnTick(const boost::system::error_code& ec) {
   if (after >= next_status_) {
     next_status_ = after + kStatusPeriod;
     NotifyStatus("");
+  }
+  if (config_.storage.checkpoint_interval_s > 0 && after >= next_checkpoint_) {
+    next_checkpoint_ = after + std::chrono::seconds(config_.storage.checkpoint_interval_s);
+    checkpoints_->Save("periodic");
   }
   if (after >= next_prune_) {
     next_prune_ = after + kPrunePeriod;

@@ -9,7 +9,10 @@
 // Shutdown (SIGINT or SIGTERM), in stages:
 //   1. close the acceptor and stop every session (each finishes its ingest,
 //      so the last records and their findings count);
-//   2. write the last batch synchronously;
+//   2. write the last batch synchronously and save every line's checkpoint
+//      (checkpoint_keeper.h): open lots and open findings continue at the next
+//      start; only if the checkpoint cannot be saved are open lots closed as
+//      partial;
 //   3. close the database;
 //   4. log a summary; run() returns because no work is left.
 // A second signal during shutdown exits at once with status 1.
@@ -46,6 +49,7 @@ class IngestServer;
 class SourceSet;
 class LineEngine;
 class AlarmService;
+class CheckpointKeeper;
 class Notifier;
 
 class Daemon {
@@ -103,7 +107,8 @@ class Daemon {
   Config config_;
   const Clock& clock_;
   boost::asio::io_context io_;
-  std::unique_ptr<Store> store_;
+  std::unique_ptr<Store> store_;         // io thread: lines, retention, checkpoints
+  std::unique_ptr<Store> writer_store_;  // the BatchWriter thread's own connection
   std::unique_ptr<BatchWriter> writer_;
   std::unique_ptr<LineEngine> engine_;
   std::unique_ptr<IngestServer> server_;
@@ -111,6 +116,8 @@ class Daemon {
   std::unique_ptr<HttpServer> http_server_;
   std::unique_ptr<SourceSet> sources_;  // the config's `sources:` list (source_set.h)
   std::unique_ptr<AlarmService> alarms_;  // alarm lifecycle and delivery (alarm_service.h)
+  std::unique_ptr<CheckpointKeeper> checkpoints_;  // restart state (checkpoint_keeper.h)
+  std::chrono::steady_clock::time_point next_checkpoint_{};
   boost::asio::signal_set signals_;
   boost::asio::steady_timer tick_timer_;
   std::chrono::steady_clock::time_point tick_due_;

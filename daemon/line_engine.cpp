@@ -84,6 +84,17 @@ void LineEngine::CloseAllLots() {
   QueueClosedLots("heftd:shutdown");
 }
 
+void LineEngine::RestoreCheckpoints(const std::vector<LineCheckpoint>& checkpoints) {
+  for (const Plant::RestoreNote& note : plant_.RestoreCheckpoints(checkpoints)) {
+    if (!note.what.empty()) spdlog::warn("restart: {}", note.what);
+    spdlog::info("restart: line {}: {}{}", note.line,
+                 note.monitor_restored ? "monitor continues" : "settles anew",
+                 note.lot_continued ? ", open lot continues"
+                                    : (note.lot_closed ? ", open lot closed as partial" : ""));
+  }
+  QueueClosedLots("heftd:restart");
+}
+
 void LineEngine::Reconfigure(PlantSettings settings) {
   for (const Plant::ReloadNote& note : plant_.Reconfigure(std::move(settings))) {
     if (note.restarted) {

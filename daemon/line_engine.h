@@ -63,8 +63,14 @@ class LineEngine {
   // index its next record will take, which is what `heft replay` attaches.
   void AdvanceClock();
 
-  // Shutdown: closes every open lot (marked partial) and queues it.
+  // Shutdown without a checkpoint: closes every open lot (marked partial) and queues it.
   void CloseAllLots();
+
+  // Restart checkpoints (core/monitor/line_checkpoint.h; checkpoint_keeper.h).
+  // Restore: at start, before any source; logs what each line got back and
+  // queues the lots that could not continue (closed as partial).
+  void RestoreCheckpoints(const std::vector<LineCheckpoint>& checkpoints);
+  std::vector<LineCheckpoint> SaveCheckpoints() const { return plant_.SaveCheckpoints(); }
 
   // SIGHUP with a valid new config: Plant::Reconfigure, logs what happened
   // to each line and queues the lots it closed.

@@ -45,8 +45,9 @@ using KeyList = std::span<const std::string_view>;
 constexpr std::array kTopKeys = {"listen"sv, "storage"sv, "log"sv,      "defaults"sv, "max_lines"sv,
                                  "lines"sv,  "sources"sv, "alerting"sv, "http"sv};
 constexpr std::array kListenKeys = {"address"sv, "port"sv, "max_connections"sv};
-constexpr std::array kStorageKeys = {"database"sv, "raw_samples"sv, "raw_retention_days"sv,
-                                     "flush_interval_ms"sv, "batch_max_rows"sv};
+constexpr std::array kStorageKeys = {"database"sv,           "raw_samples"sv,
+                                     "raw_retention_days"sv, "flush_interval_ms"sv,
+                                     "batch_max_rows"sv,     "checkpoint_interval_s"sv};
 constexpr std::array kLogKeys = {"file"sv, "level"sv};
 constexpr std::array kHttpKeys = {"enabled"sv, "address"sv, "port"sv, "token"sv};
 constexpr std::array kDetectorKeys = {
@@ -396,6 +397,9 @@ void Loader::LoadStorage(const YAML::Node& node, StorageSettings* out) {
                }
                if (key == "batch_max_rows") {
                  ReadInt(value, mark, path, 1, 1'000'000, &out->batch_max_rows);
+               }
+               if (key == "checkpoint_interval_s") {
+                 ReadInt(value, mark, path, 0, 86'400, &out->checkpoint_interval_s);
                }
              });
 }

@@ -29,6 +29,9 @@ struct StorageSettings {
   int raw_retention_days = 30;        // 0 = keep forever
   int flush_interval_ms = 250;        // batch commit interval (bounds loss on power cut)
   int batch_max_rows = 20'000;
+  // heftd saves every line's restart checkpoint this often (and at shutdown);
+  // 0 = only at shutdown. Bounds what a crash loses of the lines' state.
+  int checkpoint_interval_s = 30;
 };
 
 struct LogSettings {

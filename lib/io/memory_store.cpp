@@ -93,4 +93,17 @@ Status MemoryStore::QueryLots(const LotQuery& query, std::vector<LotRow>* out) {
   return Status::Ok();
 }
 
+Status MemoryStore::SaveLineCheckpoints(const std::vector<LineCheckpointRow>& rows) {
+  if (Status s = CheckFault(); !s.ok()) return s;
+  checkpoints_ = rows;
+  return Status::Ok();
+}
+
+Status MemoryStore::LoadLineCheckpoints(std::vector<LineCheckpointRow>* out) {
+  *out = checkpoints_;
+  std::sort(out->begin(), out->end(),
+            [](const LineCheckpointRow& a, const LineCheckpointRow& b) { return a.line < b.line; });
+  return Status::Ok();
+}
+
 }  // namespace heft

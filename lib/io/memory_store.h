@@ -24,8 +24,11 @@ class MemoryStore : public Store {
   Status PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) override;
   Status WriteLots(const std::vector<LotRow>& lots) override;
   Status QueryLots(const LotQuery& query, std::vector<LotRow>* out) override;
+  Status SaveLineCheckpoints(const std::vector<LineCheckpointRow>& rows) override;
+  Status LoadLineCheckpoints(std::vector<LineCheckpointRow>* out) override;
 
-  // The next `count` write calls (UpsertLines, WriteBatch, PruneSamples, WriteLots) fail
+  // The next `count` write calls (UpsertLines, WriteBatch, PruneSamples, WriteLots,
+  // SaveLineCheckpoints) fail
   // with `reason` and change nothing. Reads are unaffected.
   void FailNextWrites(int count, std::string reason);
 
@@ -46,6 +49,7 @@ class MemoryStore : public Store {
   std::vector<EventRow> events_;
   std::vector<SampleRow> samples_;
   std::vector<LotRow> lots_;
+  std::vector<LineCheckpointRow> checkpoints_;
   int fail_remaining_ = 0;
   std::string fail_reason_;
   int write_calls_ = 0;

@@ -151,6 +151,16 @@ CREATE INDEX lot_verdicts_lot ON lot_verdicts(lot);
     // Version 4: the alarm lifecycle — transitions, the delivery outbox,
     // operator requests and each alarm's current state (io/alarm_schema.h).
     {4, kAlarmSchemaSql},
+    // Version 5: restart checkpoints, one per line (io/checkpoint_codec.h holds the
+    // blob's format; `version` is that format, so a reader can tell before decoding).
+    {5, R"sql(
+CREATE TABLE line_checkpoints (
+  line     TEXT PRIMARY KEY,
+  saved_ms INTEGER NOT NULL,
+  version  INTEGER NOT NULL,
+  blob     BLOB NOT NULL
+);
+)sql"},
 };
 static_assert(std::size(kMigrations) == SqliteStore::kSchemaVersion,
               "one migration per schema version");
@@ -937,6 +947,65 @@ Status SqliteStore::QueryLots(const LotQuery& query, std::vector<LotRow>* out) {
       (*out)[i].lot.verdicts.push_back(std::move(v));
     }
   }
+  return Status::Ok();
+}
+
+Status SqliteStore::SaveLineCheckpoints(const std::vector<LineCheckpointRow>& rows) {
+  constexpr std::string_view kOp = "saving line checkpoints";
+  if (Status s = impl_->RequireWritable(kOp); !s.ok()) return s;
+  sqlite3_stmt* clear = nullptr;
+  sqlite3_stmt* insert = nullptr;
+  if (Status s = impl_->Prepare("DELETE FROM line_checkpoints", &clear); !s.ok()) return s;
+  if (Status s = impl_->Prepare(
+          "INSERT INTO line_checkpoints (line, saved_ms, version, blob) VALUES (?1, ?2, ?3, ?4)",
+          &insert);
+      !s.ok()) {
+    return s;
+  }
+  Transaction txn(*impl_);
+  if (Status s = txn.Begin(kOp); !s.ok()) return s;
+  {
+    StatementUse use(clear);
+    if (sqlite3_step(clear) != SQLITE_DONE) return impl_->Error(kOp);
+  }
+  for (const LineCheckpointRow& row : rows) {
+    StatementUse use(insert);
+    if ((BindText(insert, 1, row.line) | sqlite3_bind_int64(insert, 2, row.saved_ms) |
+         sqlite3_bind_int64(insert, 3, row.version) |
+         sqlite3_bind_blob64(insert, 4, row.blob.data(), row.blob.size(), SQLITE_STATIC)) !=
+        SQLITE_OK) {
+      return impl_->Error(kOp);
+    }
+    if (sqlite3_step(insert) != SQLITE_DONE) return impl_->Error(kOp);
+  }
+  return txn.Commit(kOp);
+}
+
+Status SqliteStore::LoadLineCheckpoints(std::vector<LineCheckpointRow>* out) {
+  constexpr std::string_view kOp = "loading line checkpoints";
+  out->clear();
+  if (impl_->version < 5) return Status::Ok();  // an old file opened read-only: none yet
+  sqlite3_stmt* stmt = nullptr;
+  if (Status s = impl_->Prepare(
+          "SELECT line, saved_ms, version, blob FROM line_checkpoints ORDER BY line", &stmt);
+      !s.ok()) {
+    return s;
+  }
+  StatementUse use(stmt);
+  int rc = SQLITE_ROW;
+  while ((rc = sqlite3_step(stmt)) == SQLITE_ROW) {
+    LineCheckpointRow row;
+    row.line = std::string(ColumnText(stmt, 0));
+    row.saved_ms = sqlite3_column_int64(stmt, 1);
+    row.version = sqlite3_column_int64(stmt, 2);
+    const void* blob = sqlite3_column_blob(stmt, 3);
+    const int bytes = sqlite3_column_bytes(stmt, 3);
+    if (blob != nullptr && bytes > 0) {
+      row.blob.assign(static_cast<const char*>(blob), static_cast<std::size_t>(bytes));
+    }
+    out->push_back(std::move(row));
+  }
+  if (rc != SQLITE_DONE) return impl_->Error(kOp);
   return Status::Ok();
 }
 

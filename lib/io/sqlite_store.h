@@ -14,7 +14,7 @@ namespace heft {
 
 class SqliteStore : public Store {
  public:
-  static constexpr int kSchemaVersion = 4;
+  static constexpr int kSchemaVersion = 5;
 
   enum class Mode { kReadWrite, kReadOnly };
 
@@ -34,6 +34,8 @@ class SqliteStore : public Store {
   Status PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) override;
   Status WriteLots(const std::vector<LotRow>& lots) override;
   Status QueryLots(const LotQuery& query, std::vector<LotRow>* out) override;
+  Status SaveLineCheckpoints(const std::vector<LineCheckpointRow>& rows) override;
+  Status LoadLineCheckpoints(std::vector<LineCheckpointRow>* out) override;
 
   int schema_version() const;
 

@@ -65,6 +65,15 @@ struct LotQuery {
   std::size_t limit = 0;                 // 0 = no limit
 };
 
+// One line's restart checkpoint as stored (table line_checkpoints, v5): the
+// blob is io/checkpoint_codec.h's encoding, `version` its format.
+struct LineCheckpointRow {
+  std::string line;
+  std::int64_t saved_ms = 0;  // wall clock when heftd saved it
+  std::int64_t version = 0;   // blob format (kLineCheckpointFormat)
+  std::string blob;
+};
+
 class Store {
  public:
   virtual ~Store() = default;
@@ -82,6 +91,11 @@ class Store {
   virtual Status WriteLots(const std::vector<LotRow>& lots) = 0;
   // Lots in the order they were stored, each with its verdicts.
   virtual Status QueryLots(const LotQuery& query, std::vector<LotRow>* out) = 0;
+  // Replaces every stored checkpoint with `rows` in one transaction (the set is
+  // the whole Plant's state at one moment: all or nothing).
+  virtual Status SaveLineCheckpoints(const std::vector<LineCheckpointRow>& rows) = 0;
+  // Every stored checkpoint, ordered by line id.
+  virtual Status LoadLineCheckpoints(std::vector<LineCheckpointRow>* out) = 0;
 };
 
 }  // namespace heft

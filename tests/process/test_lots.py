@@ -10,9 +10,13 @@
    the normal-model formula of safe_target.h recomputed here
    (statistics.NormalDist; EU table: TNE 15 g for 500 g, 76/211/EEC Annex I,
    check-values.md §1.1).
-3. heftd with the demo config receives the high-giveaway feed over TCP; after
-   SIGTERM `heft lots --db` lists the full lot and the partial one with the
-   caution line, in table, csv and json.
+3. heftd with the demo config receives the high-giveaway feed over TCP; SIGTERM
+   checkpoints the open 07:00 lot instead of closing it (only the full 06:00 lot
+   is stored). heftd started again with oats-1's cost_per_kg changed cannot
+   continue that lot under the new lot settings, so it stores it as partial
+   with the figures it had. `heft lots --db` then lists the full lot and the
+   partial one with the caution line, in table, csv and json. (Continuing a lot
+   across a restart is tested in test_restart.py.)
 
 Run: python3 test_lots.py --build-dir B --source-dir S  (exit 0 = pass)
 """
@@ -175,8 +179,38 @@ def daemon_and_lots_command(args, tmp, demo, feed):
                 "heftd logs the closed 06:00 lot")
         code = daemon.terminate(10)
         h.check(code == 0, "SIGTERM: heftd exits 0 (got %s)" % code)
-        h.check(daemon.wait_for(r"LOT oats-1 2026-03-02T07:00Z \(partial\)", 1) is not None,
-                "at shutdown the open lot is closed as partial")
+        h.check(daemon.wait_for(r"checkpoint saved: 1 lines continue at the next start", 1)
+                is not None, "at shutdown the line's state is checkpointed")
+        h.check(daemon.count(r"LOT oats-1 2026-03-02T07:00Z") == 0,
+                "the open 07:00 lot is not closed at shutdown")
+    except BaseException:
+        daemon.dump_log()
+        raise
+    finally:
+        daemon.kill()
+    con = sqlite3.connect(db)
+    rows = con.execute("SELECT lot_id, partial FROM lots ORDER BY id").fetchall()
+    saved = con.execute("SELECT line FROM line_checkpoints").fetchall()
+    con.close()
+    h.check(rows == [("oats-1 2026-03-02T06:00Z", 0)], "only the full lot is stored (%s)" % rows)
+    h.check(saved == [("oats-1",)], "oats-1's checkpoint is stored")
+
+    # Restart with a different product cost: the lot cannot go on under new lot settings.
+    with open(config, encoding="utf-8") as f:
+        text = f.read()
+    h.check(text.count("cost_per_kg: 2.40     #") == 1, "demo config names oats-1's cost once")
+    with open(config, "w", encoding="utf-8") as f:
+        f.write(text.replace("cost_per_kg: 2.40     #", "cost_per_kg: 2.55     #"))
+    daemon = h.Daemon(args.build_dir, config, db)
+    try:
+        daemon.wait_listening()
+        h.check(daemon.wait_for(r"LOT oats-1 2026-03-02T07:00Z \(partial\)", 5) is not None,
+                "at the restart the saved 07:00 lot is closed as partial")
+        h.check(daemon.wait_for(r"restart: line oats-1: monitor continues, open lot closed as "
+                                r"partial", 1) is not None,
+                "the log says why: the monitor continues, the lot settings changed")
+        code = daemon.terminate(10)
+        h.check(code == 0, "second SIGTERM: heftd exits 0 (got %s)" % code)
     except BaseException:
         daemon.dump_log()
         raise
@@ -184,7 +218,7 @@ def daemon_and_lots_command(args, tmp, demo, feed):
         daemon.kill()
 
     con = sqlite3.connect(db)
-    h.check(con.execute("PRAGMA user_version").fetchone()[0] >= 3, "schema version >= 3")
+    h.check(con.execute("PRAGMA user_version").fetchone()[0] >= 5, "schema version >= 5")
     rows = con.execute("SELECT lot_id, partial, count FROM lots ORDER BY id").fetchall()
     nverdicts = con.execute("SELECT count(*) FROM lot_verdicts").fetchone()[0]
     con.close()

@@ -819,5 +819,66 @@ TEST_CASE("SqliteStore migrates a version 2 database to version 3 (lots)", "[sto
   CHECK(plan.find("lots_line_last") != std::string::npos);
 }
 
+TEST_CASE("SqliteStore migrates a version 4 database to version 5 (line checkpoints)",
+          "[store][checkpoint]") {
+  TempDir dir;
+  const std::string path = dir.File("heft.db");
+  REQUIRE(SqliteStore::CreateAtVersion(path, 4).ok());
+  {
+    RawDb raw(path);
+    CHECK(raw.Int("PRAGMA user_version") == 4);
+    CHECK(raw.Int("SELECT count(*) FROM sqlite_master WHERE name = 'line_checkpoints'") == 0);
+    CHECK(raw.Int("SELECT count(*) FROM sqlite_master WHERE name = 'alarm_state'") == 1);
+  }
+  {
+    // Read-only on the old file: no checkpoints, no error, nothing changed.
+    auto reader = OpenOrFail(path, SqliteStore::Mode::kReadOnly);
+    std::vector<LineCheckpointRow> rows;
+    REQUIRE(reader->LoadLineCheckpoints(&rows).ok());
+    CHECK(rows.empty());
+  }
+  {
+    auto store = OpenOrFail(path);
+    CHECK(store->schema_version() == 5);
+    // Binary blobs (NUL bytes included) come back byte for byte; a save replaces the set.
+    const std::string blob("hLCP\0\x01\xff rest", 12);
+    REQUIRE(store
+                ->SaveLineCheckpoints(
+                    {{"oats-1", 1772431200000, 1, blob}, {"honey-2", 1772431200000, 1, "x"}})
+                .ok());
+    REQUIRE(store
+                ->SaveLineCheckpoints({{"oats-1", 1772431230000, 1, blob},
+                                       {"bran-3", 1772431230000, 1, std::string()}})
+                .ok());
+    std::vector<LineCheckpointRow> rows;
+    REQUIRE(store->LoadLineCheckpoints(&rows).ok());
+    REQUIRE(rows.size() == 2);
+    CHECK(rows[0].line == "bran-3");  // ordered by line id
+    CHECK(rows[0].blob.empty());
+    CHECK(rows[1].line == "oats-1");
+    CHECK(rows[1].saved_ms == 1772431230000);
+    CHECK(rows[1].version == 1);
+    CHECK(rows[1].blob == blob);
+  }
+  RawDb raw(path);
+  CHECK(raw.Int("PRAGMA user_version") == 5);
+  CHECK(raw.Int("SELECT count(*) FROM line_checkpoints") == 2);
+  // The primary key refuses a second row for a line.
+  CHECK(raw.Int("SELECT count(*) FROM pragma_index_list('line_checkpoints') WHERE origin = 'pk'") ==
+        1);
+}
+
+TEST_CASE("MemoryStore keeps line checkpoints like SqliteStore", "[store][checkpoint]") {
+  MemoryStore store;
+  REQUIRE(store.SaveLineCheckpoints({{"oats-1", 1, 1, "a"}, {"honey-2", 1, 1, "b"}}).ok());
+  store.FailNextWrites(1, "disk full");
+  CHECK_FALSE(store.SaveLineCheckpoints({}).ok());  // refused: the old set stays
+  std::vector<LineCheckpointRow> rows;
+  REQUIRE(store.LoadLineCheckpoints(&rows).ok());
+  REQUIRE(rows.size() == 2);
+  CHECK(rows[0].line == "honey-2");
+  CHECK(rows[1].blob == "a");
+}
+
 }  // namespace
 }  // namespace heft
