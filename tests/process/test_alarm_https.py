@@ -20,7 +20,6 @@ import http.server
 import json
 import os
 import shutil
-import sqlite3
 import ssl
 import sys
 import tempfile
@@ -30,6 +29,7 @@ import time
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import heftd_harness as h  # noqa: E402
 import tls_certs  # noqa: E402
+from alarm_outbox import query, routed, wait_delivered  # noqa: E402
 
 
 class Server:
@@ -75,30 +75,6 @@ class Server:
 
     def stop(self):
         self.httpd.shutdown()
-
-
-def query(db, sql, *params):
-    con = sqlite3.connect("file:%s?mode=ro" % db, uri=True, timeout=5)
-    try:
-        return con.execute(sql, params).fetchall()
-    finally:
-        con.close()
-
-
-def wait_delivered(db, channel, timeout):
-    deadline = time.monotonic() + timeout
-    while time.monotonic() < deadline:
-        n, pending = query(db, "SELECT count(*), sum(status = 'pending') FROM alarm_outbox "
-                               "WHERE channel = ?", channel)[0]
-        if n > 0 and not pending:
-            return True
-        time.sleep(0.2)
-    return False
-
-
-def routed(db, channel):
-    return {r[0] for r in query(db, "SELECT event_id FROM alarm_outbox WHERE channel = ?",
-                                channel)}
 
 
 def body(args):

@@ -14,7 +14,6 @@ import os
 import shutil
 import signal
 import socket
-import sqlite3
 import subprocess
 import sys
 import tempfile
@@ -24,31 +23,13 @@ import time
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import heftd_harness as h  # noqa: E402
 import tls_certs  # noqa: E402
+from alarm_outbox import query, wait_delivered  # noqa: E402
 
 
 def free_port():
     with socket.socket() as s:
         s.bind(("127.0.0.1", 0))
         return s.getsockname()[1]
-
-
-def query(db, sql, *params):
-    con = sqlite3.connect("file:%s?mode=ro" % db, uri=True, timeout=5)
-    try:
-        return con.execute(sql, params).fetchall()
-    finally:
-        con.close()
-
-
-def wait_delivered(db, channel, timeout):
-    deadline = time.monotonic() + timeout
-    while time.monotonic() < deadline:
-        n, pending = query(db, "SELECT count(*), sum(status = 'pending') FROM alarm_outbox "
-                               "WHERE channel = ?", channel)[0]
-        if n > 0 and not pending:
-            return True
-        time.sleep(0.2)
-    return False
 
 
 class Subscriber:
