@@ -186,10 +186,7 @@ int RunEvents(const Args& args, std::ostream& out, std::ostream& err) {
   if (options.db.empty()) return Fail(err, "--db FILE is required (see heft events --help)");
 
   EventQuery query;
-  query.line = options.line;
-  query.since_ms = options.since_ms;
-  query.until_ms = options.until_ms;
-  query.limit = options.limit;
+  ApplyRecordQueryOptions(options, &query);
   if (kind_text) {
     query.kind = KindFromName(*kind_text);
     if (!query.kind) {

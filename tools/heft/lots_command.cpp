@@ -185,10 +185,7 @@ int RunLots(const Args& args, std::ostream& out, std::ostream& err) {
   if (options.db.empty()) return Fail(err, "--db FILE is required (see heft lots --help)");
 
   LotQuery query;
-  query.line = options.line;
-  query.since_ms = options.since_ms;
-  query.until_ms = options.until_ms;
-  query.limit = options.limit;
+  ApplyRecordQueryOptions(options, &query);
   const OutputFormat format = options.format;
   const std::string& db_path = options.db;
 

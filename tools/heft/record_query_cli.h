@@ -23,4 +23,13 @@ struct RecordQueryOptions {
 // bad value leaves a one-line reason naming the option in *error.
 bool TakeRecordQueryOption(ArgReader& reader, RecordQueryOptions* options, std::string* error);
 
+// Copies the shared filters into a store query (EventQuery or LotQuery).
+template <class Query>
+void ApplyRecordQueryOptions(const RecordQueryOptions& options, Query* query) {
+  query->line = options.line;
+  query->since_ms = options.since_ms;
+  query->until_ms = options.until_ms;
+  query->limit = options.limit;
+}
+
 }  // namespace heft::cli
