@@ -3,6 +3,7 @@
 #include <catch2/catch.hpp>
 
 #include <algorithm>
+#include <tuple>
 
 #include "core/design/arl_design.h"
 #include "core/design/cusum_arl.h"
@@ -105,4 +106,17 @@ TEST_CASE("DesignCache returns the very values it memoises, per distinct input",
   CHECK(cache.EwmaLimit(0.05, 20000.0) == EwmaChart::LimitForArl(0.05, 20000.0));
   CHECK(cache.EwmaLimit(0.1, 20000.0) == EwmaChart::LimitForArl(0.1, 20000.0));
   CHECK(cache.EwmaLimit(0.05, 20000.0) != cache.EwmaLimit(0.1, 20000.0));
+}
+
+TEST_CASE("DesignShiftCusum gives DesignDetectors' CUSUM, also through the cache", "[design]") {
+  DesignCache cache;
+  for (const auto& [fa, rate, shift] : {std::tuple{1.0, 120.0, 1.0}, std::tuple{1.0, 120.0, 0.85},
+                                        std::tuple{0.5, 40.0, 0.7}, std::tuple{3.0, 600.0, 1.5},
+                                        std::tuple{1.0, 0.0, 20.0}}) {
+    const DetectorDesign full = DesignDetectors(fa, rate, shift);
+    const ShiftCusumDesign alone = DesignShiftCusum(fa, rate, shift);
+    CHECK(alone.k == full.cusum_k);
+    CHECK(alone.h == full.cusum_h);
+    CHECK(cache.ShiftCusum(fa, rate, shift).h == full.cusum_h);
+  }
 }

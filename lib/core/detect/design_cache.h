@@ -23,11 +23,15 @@ class DesignCache {
   // EwmaChart::LimitForArl(lambda, arl0), memoised: a Brook–Evans solve per line
   // start was the largest start-up cost left once designs were shared.
   double EwmaLimit(double lambda, double arl0);
+  // DesignShiftCusum(false_alarms_per_day, packs_per_minute, min_shift_sigma), memoised.
+  const ShiftCusumDesign& ShiftCusum(double false_alarms_per_day, double packs_per_minute,
+                                     double min_shift_sigma);
   std::size_t size() const { return designs_.size(); }
 
  private:
   std::map<std::tuple<double, double, double>, DetectorDesign> designs_;
   std::map<std::pair<double, double>, double> ewma_limits_;
+  std::map<std::tuple<double, double, double>, ShiftCusumDesign> shift_cusums_;
 };
 
 }  // namespace heft

@@ -119,8 +119,10 @@ Status DesignLineDetectors(const DesignTargets& targets, DetectorDesign* out) {
   return Status::Ok();
 }
 
-DetectorDesign DesignDetectors(double false_alarms_per_day, double packs_per_minute,
-                               double min_shift_sigma) {
+namespace {
+// DesignDetectors' inputs clamped to sane ranges.
+DesignTargets ClampedTargets(double false_alarms_per_day, double packs_per_minute,
+                             double min_shift_sigma) {
   DesignTargets targets;
   targets.packs_per_minute =
       std::isfinite(packs_per_minute) ? std::max(1.0, packs_per_minute) : 1.0;
@@ -128,6 +130,27 @@ DetectorDesign DesignDetectors(double false_alarms_per_day, double packs_per_min
       std::isfinite(false_alarms_per_day) ? std::max(1e-3, false_alarms_per_day) : 1.0;
   targets.min_shift_sigma =
       std::isfinite(min_shift_sigma) ? std::clamp(min_shift_sigma, 0.1, 5.0) : 1.0;
+  return targets;
+}
+}  // namespace
+
+ShiftCusumDesign DesignShiftCusum(double false_alarms_per_day, double packs_per_minute,
+                                  double min_shift_sigma) {
+  const DesignTargets targets =
+      ClampedTargets(false_alarms_per_day, packs_per_minute, min_shift_sigma);
+  const double arl0 = targets.packs_per_minute * 60.0 * 24.0 / targets.false_alarms_per_day;
+  CusumDesign cusum;
+  if (DesignCusum(arl0 / kCusumBudgetShare, targets.min_shift_sigma, 0.5, &cusum).ok()) {
+    return {cusum.k, cusum.h};
+  }
+  const double k = std::max(0.05, targets.min_shift_sigma / 2.0);  // as DesignDetectors' fallback
+  return {k, CusumDecisionInterval(k, arl0 / kCusumBudgetShare)};
+}
+
+DetectorDesign DesignDetectors(double false_alarms_per_day, double packs_per_minute,
+                               double min_shift_sigma) {
+  const DesignTargets targets =
+      ClampedTargets(false_alarms_per_day, packs_per_minute, min_shift_sigma);
   DetectorDesign d;
   if (DesignLineDetectors(targets, &d).ok()) return d;
   // Fallback (not expected after clamping): the Siegmund design of old.

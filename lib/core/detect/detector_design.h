@@ -89,4 +89,14 @@ Status DesignLineDetectors(const DesignTargets& targets, DetectorDesign* out);
 DetectorDesign DesignDetectors(double false_alarms_per_day, double packs_per_minute,
                                double min_shift_sigma);
 
+// Only the shift CUSUM of DesignDetectors (the same clamping, the same exact design,
+// the same Siegmund fallback): what a line redesigns once its autocorrelation is
+// known, without the drift EWMA's λ search, which does not depend on the shift.
+struct ShiftCusumDesign {
+  double k = 0.5;
+  double h = 5.0;
+};
+ShiftCusumDesign DesignShiftCusum(double false_alarms_per_day, double packs_per_minute,
+                                  double min_shift_sigma);
+
 }  // namespace heft

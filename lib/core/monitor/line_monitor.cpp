@@ -303,10 +303,13 @@ void LineMonitor::ArmDetectors() {
   // the false-alarm rate exact, since h is solved for whatever k is used.
   const double design_shift =
       std::max(0.05, std::round(20.0 * settings_.min_shift_sigma / inflation_) / 20.0);
-  const DetectorDesign mean_design =
-      Design(designs_, settings_.false_alarms_per_day, settings_.pack_rate_per_min, design_shift);
-  cusum_k_ = mean_design.cusum_k;
-  cusum_h_ = mean_design.cusum_h;
+  const ShiftCusumDesign mean_design =
+      designs_ ? designs_->ShiftCusum(settings_.false_alarms_per_day, settings_.pack_rate_per_min,
+                                      design_shift)
+               : DesignShiftCusum(settings_.false_alarms_per_day, settings_.pack_rate_per_min,
+                                  design_shift);
+  cusum_k_ = mean_design.k;
+  cusum_h_ = mean_design.h;
   cusum_up_ = TabularCusum(cusum_k_, cusum_h_);
   cusum_down_ = TabularCusum(cusum_k_, cusum_h_);
   cusum_up_.Reset(cusum_h_ / 2.0);  // 50 % head start (fast initial response)
