@@ -11,17 +11,17 @@
 #include <fmt/format.h>
 #include <spdlog/spdlog.h>
 
+#include "alarm_service.h"
 #include "batch_writer.h"
+#include "checkpoint_keeper.h"
 #include "clock.h"
 #include "http_api.h"
 #include "http_server.h"
 #include "ingest_server.h"
-#include "source_set.h"
 #include "io/sqlite_store.h"
-#include "alarm_service.h"
-#include "checkpoint_keeper.h"
 #include "line_engine.h"
 #include "sd_notifier.h"
+#include "source_set.h"
 
 namespace heft {
 namespace {
@@ -349,7 +349,7 @@ void Daemon::Shutdown(std::string_view why) {
 
   if (http_server_) http_server_->Stop();  // no more pages; then the API's worker ends
   if (http_api_) http_api_->Stop();
-  server_->Stop();  // sessions finish their ingest: the last findings are queued
+  server_->Stop();   // sessions finish their ingest: the last findings are queued
   sources_->Stop();  // configured sources too (source_set.h)
   // Open lots and findings continue at the next start; without a checkpoint
   // the open lots are stored as partial.

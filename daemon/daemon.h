@@ -112,10 +112,10 @@ class Daemon {
   std::unique_ptr<BatchWriter> writer_;
   std::unique_ptr<LineEngine> engine_;
   std::unique_ptr<IngestServer> server_;
-  std::unique_ptr<HttpApi> http_api_;      // http_api.h; null when http is off
+  std::unique_ptr<HttpApi> http_api_;  // http_api.h; null when http is off
   std::unique_ptr<HttpServer> http_server_;
-  std::unique_ptr<SourceSet> sources_;  // the config's `sources:` list (source_set.h)
-  std::unique_ptr<AlarmService> alarms_;  // alarm lifecycle and delivery (alarm_service.h)
+  std::unique_ptr<SourceSet> sources_;             // the config's `sources:` list (source_set.h)
+  std::unique_ptr<AlarmService> alarms_;           // alarm lifecycle and delivery (alarm_service.h)
   std::unique_ptr<CheckpointKeeper> checkpoints_;  // restart state (checkpoint_keeper.h)
   std::chrono::steady_clock::time_point next_checkpoint_{};
   boost::asio::signal_set signals_;

@@ -67,10 +67,11 @@ void LineEngine::QueueClosedLots(const std::string& source) {
     for (const LotVerdict& v : lot.verdicts) {
       verdicts += fmt::format("{}{} {}", verdicts.empty() ? "" : ", ", v.rule_id, v.state);
     }
-    spdlog::info("LOT {}{}: {} packs, mean {:.2f} g, s {:.2f} g, {} below T1, {} below T2, "
-                 "giveaway {:.2f} kg; {}",
-                 lot.lot_id, lot.partial ? " (partial)" : "", f.count, f.mean_g, f.s_g,
-                 f.t1_count, f.t2_count, f.giveaway_g / 1000.0, verdicts);
+    spdlog::info(
+        "LOT {}{}: {} packs, mean {:.2f} g, s {:.2f} g, {} below T1, {} below T2, "
+        "giveaway {:.2f} kg; {}",
+        lot.lot_id, lot.partial ? " (partial)" : "", f.count, f.mean_g, f.s_g, f.t1_count,
+        f.t2_count, f.giveaway_g / 1000.0, verdicts);
     LotRow row;
     row.lot = std::move(lot);
     row.source = source;
@@ -98,8 +99,8 @@ void LineEngine::RestoreCheckpoints(const std::vector<LineCheckpoint>& checkpoin
 void LineEngine::Reconfigure(PlantSettings settings) {
   for (const Plant::ReloadNote& note : plant_.Reconfigure(std::move(settings))) {
     if (note.restarted) {
-      spdlog::info("reload: line {}: {}; re-baselined (settling again, open lot closed)",
-                   note.line, note.what);
+      spdlog::info("reload: line {}: {}; re-baselined (settling again, open lot closed)", note.line,
+                   note.what);
     } else {
       spdlog::warn("reload: line {}: {}", note.line, note.what);
     }

@@ -25,9 +25,9 @@ struct ListenSettings {
 
 struct StorageSettings {
   std::string database = "heft.db";
-  bool raw_samples = true;            // keep every pack, not only events
-  int raw_retention_days = 30;        // 0 = keep forever
-  int flush_interval_ms = 250;        // batch commit interval (bounds loss on power cut)
+  bool raw_samples = true;      // keep every pack, not only events
+  int raw_retention_days = 30;  // 0 = keep forever
+  int flush_interval_ms = 250;  // batch commit interval (bounds loss on power cut)
   int batch_max_rows = 20'000;
   // heftd saves every line's restart checkpoint this often (and at shutdown);
   // 0 = only at shutdown. Bounds what a crash loses of the lines' state.
@@ -35,7 +35,7 @@ struct StorageSettings {
 };
 
 struct LogSettings {
-  std::string file;                   // empty = console only
+  std::string file;  // empty = console only
   std::string level = "info";
 };
 
@@ -44,18 +44,18 @@ struct LogSettings {
 struct HttpSettings {
   bool enabled = false;
   std::string address = "127.0.0.1";  // this machine only by default
-  int port = 7380;                     // 0 = any free port (tests)
-  std::string token;                   // empty = no operator actions over HTTP
+  int port = 7380;                    // 0 = any free port (tests)
+  std::string token;                  // empty = no operator actions over HTTP
 };
 
 struct Config {
-  std::string path;                   // where it was read from
+  std::string path;  // where it was read from
   ListenSettings listen;
   StorageSettings storage;
   LogSettings log;
   HttpSettings http;  // the `http:` block
   PlantSettings plant;
-  AlertingSettings alerting;  // the `alerting:` block (io/alerting_loader.h)
+  AlertingSettings alerting;            // the `alerting:` block (io/alerting_loader.h)
   std::vector<SourceSettings> sources;  // the `sources:` list (io/source_settings.h)
 };
 

@@ -758,10 +758,9 @@ Status SqliteStore::WriteLots(const std::vector<LotRow>& lots) {
       !s.ok()) {
     return s;
   }
-  if (Status s = impl_->Prepare(
-          "INSERT INTO lot_verdicts(lot, rule, state, margin, unit, note) "
-          "VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
-          &verdict_stmt);
+  if (Status s = impl_->Prepare("INSERT INTO lot_verdicts(lot, rule, state, margin, unit, note) "
+                                "VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
+                                &verdict_stmt);
       !s.ok()) {
     return s;
   }
@@ -779,44 +778,38 @@ Status SqliteStore::WriteLots(const std::vector<LotRow>& lots) {
     {
       StatementUse use(lot_stmt);
       sqlite3_stmt* st = lot_stmt;
-      int rc = BindText(st, 1, lot.line) | sqlite3_bind_int64(st, 2, lot.seq) |
-               BindText(st, 3, lot.lot_id) | BindText(st, 4, lot.boundary) |
-               sqlite3_bind_int(st, 5, lot.partial ? 1 : 0) |
-               sqlite3_bind_int64(st, 6, lot.opened_ms) |
-               sqlite3_bind_int64(st, 7, f.first_index) |
-               sqlite3_bind_int64(st, 8, f.last_index) |
-               sqlite3_bind_int64(st, 9, f.first_time_ms) |
-               sqlite3_bind_int64(st, 10, f.last_time_ms) | sqlite3_bind_int64(st, 11, f.count) |
-               sqlite3_bind_int64(st, 12, f.seen) | sqlite3_bind_double(st, 13, f.mean_g) |
-               sqlite3_bind_double(st, 14, f.s_g) |
-               sqlite3_bind_double(st, 15, f.short_term_sigma_g) |
-               sqlite3_bind_double(st, 16, f.min_g) | sqlite3_bind_double(st, 17, f.max_g) |
-               sqlite3_bind_int64(st, 18, f.t1_count) | sqlite3_bind_int64(st, 19, f.t2_count) |
-               sqlite3_bind_int64(st, 20, f.below_nominal) |
-               sqlite3_bind_int64(st, 21, f.gross) | sqlite3_bind_int64(st, 22, f.rejected) |
-               sqlite3_bind_int64(st, 23, f.rejected_below_t1) |
-               sqlite3_bind_int64(st, 24, f.errors) | sqlite3_bind_int64(st, 25, f.invalid) |
-               sqlite3_bind_double(st, 26, f.giveaway_g) |
-               sqlite3_bind_double(st, 27, f.giveaway_money) |
-               sqlite3_bind_double(st, 28, lot.cost_per_kg) |
-               sqlite3_bind_double(st, 29, lot.nominal_g) |
-               sqlite3_bind_double(st, 30, lot.tne_g) | sqlite3_bind_double(st, 31, lot.t1_g) |
-               BindOptDouble(st, 32, lot.t2_g) | BindText(st, 33, lot.rules_id) |
-               BindOptDouble(st, 34, opt(&SafeTargetAdvice::target_g)) |
-               (a ? BindText(st, 35, a->binding_rule) : sqlite3_bind_null(st, 35)) |
-               BindOptDouble(st, 36, opt(&SafeTargetAdvice::sigma_g)) |
-               BindOptDouble(st, 37, opt(&SafeTargetAdvice::packs_per_hour)) |
-               BindOptDouble(st, 38, opt(&SafeTargetAdvice::saving_per_pack_g)) |
-               BindOptDouble(st, 39, opt(&SafeTargetAdvice::saving_per_hour_g)) |
-               BindOptDouble(st, 40, opt(&SafeTargetAdvice::saving_per_year_kg)) |
-               BindOptDouble(st, 41, opt(&SafeTargetAdvice::saving_per_year_money)) |
-               (a ? sqlite3_bind_int(st, 42, a->raise_needed ? 1 : 0)
-                  : sqlite3_bind_null(st, 42)) |
-               (a ? BindText(st, 43, a->text) : sqlite3_bind_null(st, 43)) |
-               BindText(st, 44, row.source) | sqlite3_bind_int64(st, 45, row.recorded_ms);
+      int rc =
+          BindText(st, 1, lot.line) | sqlite3_bind_int64(st, 2, lot.seq) |
+          BindText(st, 3, lot.lot_id) | BindText(st, 4, lot.boundary) |
+          sqlite3_bind_int(st, 5, lot.partial ? 1 : 0) | sqlite3_bind_int64(st, 6, lot.opened_ms) |
+          sqlite3_bind_int64(st, 7, f.first_index) | sqlite3_bind_int64(st, 8, f.last_index) |
+          sqlite3_bind_int64(st, 9, f.first_time_ms) | sqlite3_bind_int64(st, 10, f.last_time_ms) |
+          sqlite3_bind_int64(st, 11, f.count) | sqlite3_bind_int64(st, 12, f.seen) |
+          sqlite3_bind_double(st, 13, f.mean_g) | sqlite3_bind_double(st, 14, f.s_g) |
+          sqlite3_bind_double(st, 15, f.short_term_sigma_g) | sqlite3_bind_double(st, 16, f.min_g) |
+          sqlite3_bind_double(st, 17, f.max_g) | sqlite3_bind_int64(st, 18, f.t1_count) |
+          sqlite3_bind_int64(st, 19, f.t2_count) | sqlite3_bind_int64(st, 20, f.below_nominal) |
+          sqlite3_bind_int64(st, 21, f.gross) | sqlite3_bind_int64(st, 22, f.rejected) |
+          sqlite3_bind_int64(st, 23, f.rejected_below_t1) | sqlite3_bind_int64(st, 24, f.errors) |
+          sqlite3_bind_int64(st, 25, f.invalid) | sqlite3_bind_double(st, 26, f.giveaway_g) |
+          sqlite3_bind_double(st, 27, f.giveaway_money) |
+          sqlite3_bind_double(st, 28, lot.cost_per_kg) |
+          sqlite3_bind_double(st, 29, lot.nominal_g) | sqlite3_bind_double(st, 30, lot.tne_g) |
+          sqlite3_bind_double(st, 31, lot.t1_g) | BindOptDouble(st, 32, lot.t2_g) |
+          BindText(st, 33, lot.rules_id) | BindOptDouble(st, 34, opt(&SafeTargetAdvice::target_g)) |
+          (a ? BindText(st, 35, a->binding_rule) : sqlite3_bind_null(st, 35)) |
+          BindOptDouble(st, 36, opt(&SafeTargetAdvice::sigma_g)) |
+          BindOptDouble(st, 37, opt(&SafeTargetAdvice::packs_per_hour)) |
+          BindOptDouble(st, 38, opt(&SafeTargetAdvice::saving_per_pack_g)) |
+          BindOptDouble(st, 39, opt(&SafeTargetAdvice::saving_per_hour_g)) |
+          BindOptDouble(st, 40, opt(&SafeTargetAdvice::saving_per_year_kg)) |
+          BindOptDouble(st, 41, opt(&SafeTargetAdvice::saving_per_year_money)) |
+          (a ? sqlite3_bind_int(st, 42, a->raise_needed ? 1 : 0) : sqlite3_bind_null(st, 42)) |
+          (a ? BindText(st, 43, a->text) : sqlite3_bind_null(st, 43)) |
+          BindText(st, 44, row.source) | sqlite3_bind_int64(st, 45, row.recorded_ms);
       if (rc != SQLITE_OK || sqlite3_step(st) != SQLITE_DONE) {
-        return impl_->Error(fmt::format("{}: lot {} of {} ({})", kOp, i + 1, lots.size(),
-                                        lot.lot_id));
+        return impl_->Error(
+            fmt::format("{}: lot {} of {} ({})", kOp, i + 1, lots.size(), lot.lot_id));
       }
     }
     const std::int64_t lot_rowid = sqlite3_last_insert_rowid(impl_->db);

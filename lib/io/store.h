@@ -28,7 +28,7 @@ struct LineRow {
 
 struct SampleRow {
   std::string line;
-  std::string source;          // which feed it came from, e.g. "tcp:127.0.0.1:41234"
+  std::string source;  // which feed it came from, e.g. "tcp:127.0.0.1:41234"
   std::int64_t record_index = 0;
   std::int64_t time_ms = 0;
   double grams = 0.0;
@@ -38,7 +38,7 @@ struct SampleRow {
 
 struct EventRow {
   Finding finding;
-  std::string message;         // the operator message as sent
+  std::string message;  // the operator message as sent
   std::string source;
   std::int64_t recorded_ms = 0;  // when heft stored it (wall clock of the writer)
 };

@@ -110,9 +110,9 @@ TEST_CASE("DesignCache returns the very values it memoises, per distinct input",
 
 TEST_CASE("DesignShiftCusum gives DesignDetectors' CUSUM, also through the cache", "[design]") {
   DesignCache cache;
-  for (const auto& [fa, rate, shift] : {std::tuple{1.0, 120.0, 1.0}, std::tuple{1.0, 120.0, 0.85},
-                                        std::tuple{0.5, 40.0, 0.7}, std::tuple{3.0, 600.0, 1.5},
-                                        std::tuple{1.0, 0.0, 20.0}}) {
+  for (const auto& [fa, rate, shift] :
+       {std::tuple{1.0, 120.0, 1.0}, std::tuple{1.0, 120.0, 0.85}, std::tuple{0.5, 40.0, 0.7},
+        std::tuple{3.0, 600.0, 1.5}, std::tuple{1.0, 0.0, 20.0}}) {
     const DetectorDesign full = DesignDetectors(fa, rate, shift);
     const ShiftCusumDesign alone = DesignShiftCusum(fa, rate, shift);
     CHECK(alone.k == full.cusum_k);

@@ -174,7 +174,8 @@ TEST_CASE("lots: a clear still comes when record numbering restarts (reconnect)"
   }
   REQUIRE(findings.size() == 2);
   CHECK(findings[1].transition == Transition::kCleared);
-  CHECK(findings[1].at <= settings.compliance_hold_off_packs + 2 * LineCompliance::kAssessEveryPacks);
+  CHECK(findings[1].at <=
+        settings.compliance_hold_off_packs + 2 * LineCompliance::kAssessEveryPacks);
 }
 
 TEST_CASE("lots: a falling fill raises a warning or alarm on the mean, then clears", "[lots]") {

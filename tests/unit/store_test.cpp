@@ -490,9 +490,8 @@ TEST_CASE("SqliteStore refuses a database from a newer heft", "[store]") {
     RawDb raw(path);
     raw.Exec("PRAGMA user_version = 99");
   }
-  const std::string expected =
-      path + ": database schema version 99 is newer than this heft (" +
-      std::to_string(SqliteStore::kSchemaVersion) + "); upgrade heft";
+  const std::string expected = path + ": database schema version 99 is newer than this heft (" +
+                               std::to_string(SqliteStore::kSchemaVersion) + "); upgrade heft";
   for (auto mode : {SqliteStore::Mode::kReadWrite, SqliteStore::Mode::kReadOnly}) {
     std::unique_ptr<SqliteStore> store;
     const Status s = SqliteStore::Open(path, mode, &store);

@@ -30,10 +30,10 @@ const ShiftCusumDesign& DesignCache::ShiftCusum(double false_alarms_per_day,
   const auto key = std::make_tuple(false_alarms_per_day, packs_per_minute, min_shift_sigma);
   auto it = shift_cusums_.find(key);
   if (it == shift_cusums_.end()) {
-    it = shift_cusums_
-             .emplace(key, DesignShiftCusum(false_alarms_per_day, packs_per_minute,
-                                            min_shift_sigma))
-             .first;
+    it =
+        shift_cusums_
+            .emplace(key, DesignShiftCusum(false_alarms_per_day, packs_per_minute, min_shift_sigma))
+            .first;
   }
   return it->second;
 }

@@ -8,8 +8,8 @@
 #pragma once
 
 #include <map>
-#include <utility>
 #include <tuple>
+#include <utility>
 
 #include "core/detect/detector_design.h"
 

@@ -74,8 +74,7 @@ std::complex<double> Polynomial(const std::vector<double>& y, std::size_t m,
 // are independent, so the loop over them runs in parallel (and vectorises) instead of
 // waiting on one multiply-add chain.
 void Polynomials(const std::vector<double>& y, std::size_t m, const std::vector<double>& zr,
-                 const std::vector<double>& zi, std::vector<double>* re,
-                 std::vector<double>* im) {
+                 const std::vector<double>& zi, std::vector<double>* re, std::vector<double>* im) {
   const std::size_t k = zr.size();
   re->assign(k, 0.0);
   im->assign(k, 0.0);

@@ -64,8 +64,8 @@ void LineIndex::Insert(std::string_view line, std::size_t slot) {
 }
 
 void LineIndex::Grow() {
-  std::vector<Bucket> old = std::exchange(buckets_, std::vector<Bucket>(
-                                                        buckets_.empty() ? 16 : 2 * buckets_.size()));
+  std::vector<Bucket> old =
+      std::exchange(buckets_, std::vector<Bucket>(buckets_.empty() ? 16 : 2 * buckets_.size()));
   mask_ = buckets_.size() - 1;
   for (Bucket& b : old) {
     if (!b.used) continue;

@@ -79,9 +79,9 @@ LineMonitor::LineMonitor(std::string line, const LineSettings& settings, DesignC
       // L for the EWMA's share, by the Brook–Evans chain (ewma_chart.h). λ and L are
       // computed here because DetectorDesign does not carry them (yet).
       ewma_(settings.drift_lambda,
-            designs ? designs->EwmaLimit(settings.drift_lambda, kEwmaShare * design_.arl0_packs)
-                    : EwmaChart::LimitForArl(settings.drift_lambda,
-                                             kEwmaShare * design_.arl0_packs)),
+            designs
+                ? designs->EwmaLimit(settings.drift_lambda, kEwmaShare * design_.arl0_packs)
+                : EwmaChart::LimitForArl(settings.drift_lambda, kEwmaShare * design_.arl0_packs)),
       head_cusums_(0, 1.0, 6.0),
       rules_(RunRuleSettings::Published()),
       spread_(5, 0.5, 5.0),

@@ -14,8 +14,8 @@
 
 #include "core/detect/design_cache.h"
 #include "core/model/finding.h"
-#include "core/monitor/line_index.h"
 #include "core/monitor/line_checkpoint.h"
+#include "core/monitor/line_index.h"
 #include "core/monitor/line_settings.h"
 #include "core/monitor/lot_report.h"
 #include "core/record/record_view.h"
@@ -116,8 +116,8 @@ class Plant {
   void MakeCompliance(Entry& entry, const LineSettings& line_settings);
 
   PlantSettings settings_;
-  DesignCache designs_;          // shared by the line monitors (declared before them)
-  std::vector<Entry> monitors_;  // in order of first appearance
+  DesignCache designs_;                       // shared by the line monitors (declared before them)
+  std::vector<Entry> monitors_;               // in order of first appearance
   LineIndex index_;                           // line id → monitors_
   std::int64_t record_clock_ms_ = INT64_MIN;  // latest record time seen
   std::int64_t earliest_silence_deadline_ms_ = INT64_MAX;

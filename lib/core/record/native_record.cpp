@@ -144,7 +144,7 @@ enum class WeightError { kNone, kNumber, kUnit };
 // of two exact values is correctly rounded, so the result equals std::from_chars's.
 // Returns the characters used, or 0 when the text needs the general parser.
 std::size_t ParsePlainDecimal(std::string_view s, double* value) {
-  static constexpr double kPow10[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6, 1e7,
+  static constexpr double kPow10[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
                                       1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
   std::size_t i = 0;
   const bool negative = !s.empty() && s[0] == '-';
