@@ -157,6 +157,22 @@ class Daemon:
         print("----", flush=True)
 
 
+def free_port():
+    """A loopback TCP port free at the time of asking."""
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+def send_feed(daemon, path):
+    """Sends a whole feed file to the daemon over one connection, then closes it."""
+    with open(path, "rb") as f:
+        feed = f.read()
+    s = daemon.connect()
+    s.sendall(feed)
+    s.close()
+
+
 def count_samples(db):
     """Samples in the database, read-only (WAL lets us read while heftd writes)."""
     try:

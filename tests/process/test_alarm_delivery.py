@@ -33,12 +33,6 @@ with open(sys.argv[1], "a") as f:
 """
 
 
-def free_port():
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
-
-
 class Broker:
     def __init__(self, tmp, port):
         self.conf = os.path.join(tmp, "mosquitto.conf")
@@ -176,7 +170,7 @@ def body(args):
 
     http_server = http.server.ThreadingHTTPServer(("127.0.0.1", 0), Webhook)
     threading.Thread(target=http_server.serve_forever, daemon=True).start()
-    mq_port = free_port()
+    mq_port = h.free_port()
     broker = Broker(tmp, mq_port)
     broker.start()
     sub = Subscriber(mq_port, "heft/#")

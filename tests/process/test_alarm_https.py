@@ -110,13 +110,9 @@ def body(args):
 """ % (good.port, ca[0], good.port, ca[0], untrusted.port, ca[0], wrong_name.port, ca[0],
                 good.port))
 
-        with open(os.path.join(args.source_dir, "demo_feeds", "mixed-plant.csv"), "rb") as f:
-            feed = f.read()
         daemon = h.Daemon(args.build_dir, config, db)
         daemon.wait_listening()
-        s = daemon.connect()
-        s.sendall(feed)
-        s.close()
+        h.send_feed(daemon, os.path.join(args.source_dir, "demo_feeds", "mixed-plant.csv"))
 
         h.check(wait_delivered(db, "secure", 60), "secure: the outbox drains")
         h.check(wait_delivered(db, "by-ip", 30), "by-ip: the outbox drains")

@@ -23,13 +23,7 @@ import time
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import heftd_harness as h  # noqa: E402
 import tls_certs  # noqa: E402
-from alarm_outbox import query, wait_delivered  # noqa: E402
-
-
-def free_port():
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
+from alarm_outbox import query, routed, wait_delivered  # noqa: E402
 
 
 class Subscriber:
@@ -72,7 +66,7 @@ def body(args):
         os.chmod(tmp, 0o755)
         for name in os.listdir(tmp):
             os.chmod(os.path.join(tmp, name), 0o644)
-        port = free_port()
+        port = h.free_port()
         conf = os.path.join(tmp, "mosquitto.conf")
         with open(conf, "w") as f:
             f.write("listener %d 127.0.0.1\nallow_anonymous true\ncafile %s\ncertfile %s\n"
@@ -122,17 +116,12 @@ def body(args):
        timeout_ms: 3000, topic_prefix: other, tls: {ca_file: %s}}
 """ % (port, ca[0], port, rogue[0]))
 
-        with open(os.path.join(args.source_dir, "demo_feeds", "mixed-plant.csv"), "rb") as f:
-            feed = f.read()
         daemon = h.Daemon(args.build_dir, config, db)
         daemon.wait_listening()
-        s = daemon.connect()
-        s.sendall(feed)
-        s.close()
+        h.send_feed(daemon, os.path.join(args.source_dir, "demo_feeds", "mixed-plant.csv"))
         h.check(wait_delivered(db, "broker", 60), "broker: the outbox drains over TLS")
         time.sleep(1.0)
-        want = {r[0] for r in query(db, "SELECT event_id FROM alarm_outbox WHERE channel = "
-                                        "'broker'")}
+        want = routed(db, "broker")
         events = [json.loads(p) for t, p in sub.snapshot() if t.endswith("/event")]
         got = {e["event_id"] for e in events}
         h.check(len(want) > 0 and got == want,
