@@ -208,6 +208,39 @@ TEST_CASE("settle fit: under-damped approach with noise", "[detect][settle]") {
   CHECK(f.settle_at <= 75);
 }
 
+TEST_CASE("robust baseline: the inflation's standard error matches its spread",
+          "[detect][baseline]") {
+  // InflationRelError() is the delta-method figure 1/sqrt((1−φ²)n), from the
+  // large-sample variance (1−φ²)/n of the lag-1 autocorrelation (Bartlett's formula
+  // for an AR(1); from memory). Check it against the spread of ln √((1+φ̂)/(1−φ̂))
+  // over independent AR(1) baselines, φ = 0.15, n = 1200: the sample sd of 400
+  // replicates is within about 3.5 % (1/√(2·399)) of the true sd, so 12 % allows
+  // for that and the delta method's own error.
+  RandomSource rng(31);
+  const double phi = 0.15;
+  const int n = 1200, reps = 400;
+  double sum = 0.0, sum_sq = 0.0, claimed = 0.0;
+  for (int r = 0; r < reps; ++r) {
+    std::vector<double> g;
+    double ar = rng.Normal();
+    for (int i = 0; i < n; ++i) {
+      ar = phi * ar + std::sqrt(1.0 - phi * phi) * rng.Normal();
+      g.push_back(250.0 + 0.8 * ar);
+    }
+    RobustBaseline b;
+    b.Learn(g, {}, 0);
+    REQUIRE(b.ready());
+    const double v = std::log(b.AutocorrelationInflation());
+    sum += v;
+    sum_sq += v * v;
+    claimed += b.InflationRelError() / reps;
+  }
+  const double sd = std::sqrt((sum_sq - sum * sum / reps) / (reps - 1));
+  CHECK(claimed == Approx(1.0 / std::sqrt((1.0 - phi * phi) * n)).epsilon(0.03));
+  CAPTURE(sd, claimed);
+  CHECK(sd == Approx(claimed).epsilon(0.12));
+}
+
 TEST_CASE("robust baseline: level, head offsets, sigma, phi, gross packs out",
           "[detect][baseline]") {
   RandomSource rng(8);

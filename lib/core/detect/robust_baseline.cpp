@@ -152,6 +152,11 @@ double RobustBaseline::SigmaRelError() const {
   return dof > 1.0 ? 1.0 / std::sqrt(2.0 * dof) : 1.0;
 }
 
+double RobustBaseline::InflationRelError() const {
+  const double n = total_.n;
+  return n > 1.0 ? 1.0 / std::sqrt((1.0 - phi_ * phi_) * n) : 1.0;
+}
+
 RobustBaseline::State RobustBaseline::SaveState() const {
   State s;
   s.ready = ready_;

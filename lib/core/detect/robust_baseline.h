@@ -59,6 +59,10 @@ class RobustBaseline {
   double OffsetStdError(int head) const;
   // Relative standard error of σ: 1/sqrt(2(n − heads)).
   double SigmaRelError() const;
+  // Relative standard error of AutocorrelationInflation(): its log has slope 1/(1−φ²)
+  // in φ, and φ̂ has standard error sqrt((1−φ²)/n) (the large-sample AR(1) result,
+  // e.g. Box & Jenkins; from memory), so 1/sqrt((1−φ²)·n).
+  double InflationRelError() const;
 
   // Restart checkpoint (line_monitor_checkpoint.h): everything learnt and accumulated,
   // as plain values. RestoreState refuses (false) per-head vectors that do not

@@ -358,9 +358,28 @@ void LineMonitor::ArmDetectors() {
 }
 
 void LineMonitor::UpdateAllowances() {
-  sigma_eff_ = baseline_.sigma() * (1.0 + baseline_.SigmaRelError());
-  // Level error in the units the mean detectors see (z / inflation).
-  level_allow_ = baseline_.LevelStdError() / inflation_;
+  // Allowances for the baseline's own error, sized so that the false-alarm rate
+  // averaged over that error is the designed one (rather than the rate at a one-
+  // standard-error worst case, which over-pays once the baseline holds thousands
+  // of packs). With ln ARL₀ ≈ 2k·b − ln(2k²), b = h + 1.166 (Siegmund), a level error
+  // ε ~ N(0, s²) in a two-sided CUSUM shifts the two sides' rates by e^{±cε},
+  // c = ∂ln ARL₀/∂k = 2b − 2/k; their mean grows by E[cosh cε] = e^{c²s²/2}, which
+  // an allowance a = c·s²/2 taken off the reference value cancels. A relative scale
+  // error ε (σ or the autocorrelation inflation) moves ln ARL₀ by c'·ε with
+  // c' = k∂/∂k + h∂/∂h = 2k(h + b) − 2, cancelled by widening the scale by c'·s²/2.
+  // Both allowances fall as 1/n as the baseline grows.
+  const double b = cusum_h_ + 1.166;
+  const double c_level = std::max(0.0, 2.0 * b - 2.0 / cusum_k_);
+  const double c_scale = std::max(0.0, 2.0 * cusum_k_ * (cusum_h_ + b) - 2.0);
+  const double se_sigma = baseline_.SigmaRelError();
+  const double se_inflation = baseline_.InflationRelError();
+  sigma_eff_ = baseline_.sigma() * (1.0 + 0.5 * c_scale * se_sigma * se_sigma);
+  // The mean detectors' scale follows the autocorrelation as the baseline refines it
+  // (their k and h stay as designed at the end of settling).
+  mean_scale_ =
+      baseline_.AutocorrelationInflation() * (1.0 + 0.5 * c_scale * se_inflation * se_inflation);
+  const double se_level = baseline_.LevelStdError() / baseline_.AutocorrelationInflation();
+  level_allow_ = 0.5 * c_level * se_level * se_level;
   subgroup_sd_ = std::sqrt(MeanVarianceFactor(subgroup_n_, baseline_.phi()) / subgroup_n_);
   head_allow_.assign(static_cast<std::size_t>(std::max(0, heads_)), 0.0);
   for (int h = 0; h < heads_; ++h) {
@@ -442,7 +461,7 @@ void LineMonitor::RunMean(const Pack& pack, double z, std::vector<Finding>* out)
       return;
     }
     if (packs_ - raised_at_pack_[Slot(kind)] >= kMeanMinOpenPacks &&
-        std::fabs(mean_clear_ewma_) < kMeanClearFraction * cusum_k_ * inflation_) {
+        std::fabs(mean_clear_ewma_) < kMeanClearFraction * cusum_k_ * mean_scale_) {
       Clear(kind, pack, kind == FindingKind::kShift ? "cusum" : "ewma", out);
       cusum_up_.Reset(cusum_h_ / 2.0);
       cusum_down_.Reset(cusum_h_ / 2.0);
@@ -450,24 +469,25 @@ void LineMonitor::RunMean(const Pack& pack, double z, std::vector<Finding>* out)
     }
     return;
   }
-  const double zc = z / inflation_;
+  const double zc = z / mean_scale_;
   cusum_up_.UpdateUpper(zc - level_allow_, pack.index);
   cusum_down_.UpdateLower(zc + level_allow_, pack.index);
   const EwmaChart::Signal ew = ewma_.Update(zc, level_allow_);
   if (cusum_up_.upper() > cusum_h_) {
     RaiseMean(pack, "cusum", +1,
-              (cusum_up_.EstimatedShift(TabularCusum::Signal::kUp) + level_allow_) * inflation_,
+              (cusum_up_.EstimatedShift(TabularCusum::Signal::kUp) + level_allow_) * mean_scale_,
               cusum_up_.upper_onset(), out);
   } else if (cusum_down_.lower() > cusum_h_) {
-    RaiseMean(pack, "cusum", -1,
-              (cusum_down_.EstimatedShift(TabularCusum::Signal::kDown) - level_allow_) * inflation_,
-              cusum_down_.lower_onset(), out);
+    RaiseMean(
+        pack, "cusum", -1,
+        (cusum_down_.EstimatedShift(TabularCusum::Signal::kDown) - level_allow_) * mean_scale_,
+        cusum_down_.lower_onset(), out);
   } else if (ew != EwmaChart::Signal::kNone) {
     const bool up = ew == EwmaChart::Signal::kUp;
     std::optional<std::int64_t> onset;
     if (up && cusum_up_.upper() > 0.0) onset = cusum_up_.upper_onset();
     if (!up && cusum_down_.lower() > 0.0) onset = cusum_down_.lower_onset();
-    RaiseMean(pack, "ewma", up ? 1 : -1, ewma_.value() * inflation_, onset, out);
+    RaiseMean(pack, "ewma", up ? 1 : -1, ewma_.value() * mean_scale_, onset, out);
   }
 }
 

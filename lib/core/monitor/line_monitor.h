@@ -158,9 +158,10 @@ class LineMonitor {
 
   // Baseline and the allowances derived from it.
   RobustBaseline baseline_;
-  double sigma_eff_ = 1.0;    // σ widened by its standard error
-  double inflation_ = 1.0;    // √((1+φ)/(1−φ))
-  double level_allow_ = 0.0;  // level standard error, in units of z/inflation
+  double sigma_eff_ = 1.0;    // σ widened for its estimation error
+  double inflation_ = 1.0;    // √((1+φ)/(1−φ)) at the end of settling: the CUSUM's design
+  double mean_scale_ = 1.0;   // √((1+φ)/(1−φ)) as now learnt, widened for its error
+  double level_allow_ = 0.0;  // allowance for the level's error, in units of z/mean_scale_
   double subgroup_sd_ = 1.0;  // σ of a subgroup mean of z
   std::int64_t block_count_ = 0;
   bool block_clean_ = true;
