@@ -10,6 +10,7 @@
 #include "core/detect/change_shape.h"
 #include "core/detect/ewma_chart.h"
 #include "core/detect/head_cusum.h"
+#include "core/detect/head_pattern.h"
 #include "core/detect/log_variance_cusum.h"
 #include "core/detect/periodicity_test.h"
 #include "core/detect/robust_baseline.h"
@@ -206,6 +207,32 @@ TEST_CASE("settle fit: under-damped approach with noise", "[detect][settle]") {
   const SettleEstimate f = EstimateSettling(flat, 50);
   CHECK(f.model == SettleModel::kNone);
   CHECK(f.settle_at <= 75);
+}
+
+TEST_CASE("head pattern: the period of the per-head means", "[detect][heads]") {
+  // Hand-worked: 12 heads, 10 packs each.
+  const std::vector<double> count(12, 10.0);
+  auto period = [&](const std::vector<double>& means) {
+    std::vector<double> sum;
+    for (double m : means) sum.push_back(10.0 * m);
+    return HeadPatternPeriod({count, sum});
+  };
+  // Alternating ±1: period 2 leaves nothing unexplained.
+  CHECK(period({1, -1, 1, -1, 1, -1, 1, -1, 1, -1, 1, -1}) == 2);
+  // Every third head high: 3.
+  CHECK(period({2, 0, 0, 2, 0, 0, 2, 0, 0, 2, 0, 0}) == 3);
+  // One head off by 3: grand mean 0.25, total spread 11·0.25² + 2.75² = 8.25; the best
+  // divisor, 6, pairs head 4 with head 10 and leaves 2·1.5² = 4.5 (55 %) unexplained,
+  // above the 25 % allowed, so the period is the head count.
+  CHECK(period({0, 0, 0, 0, 3, 0, 0, 0, 0, 0, 0, 0}) == 12);
+  // Noisy alternation: class means ±1 leave 0.46 of the total 12.46 (4 %): still 2.
+  CHECK(period({1.3, -1, 0.7, -1.2, 1, -0.8, 1.1, -1, 0.9, -1.3, 1, -0.7}) == 2);
+  // A head with no packs, or flat means: the head count.
+  std::vector<double> some(12, 10.0);
+  some[3] = 0.0;
+  const std::vector<double> sum(12, 0.0);
+  CHECK(HeadPatternPeriod({some, sum}) == 12);
+  CHECK(period(std::vector<double>(12, 0.5)) == 12);
 }
 
 TEST_CASE("robust baseline: the inflation's standard error matches its spread",

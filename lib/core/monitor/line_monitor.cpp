@@ -6,6 +6,7 @@
 #include <span>
 
 #include "core/detect/change_shape.h"
+#include "core/detect/head_pattern.h"
 #include "core/detect/settle_fit.h"
 
 namespace heft {
@@ -656,7 +657,7 @@ void LineMonitor::RunHeads(const Pack& pack, double z, std::vector<Finding>* out
       std::fabs(s->shift) >= 2.0 * kShiftAlarmSigma ? Severity::kAlarm : Severity::kWarning, pack);
   raised.onset = s->onset;
   raised.head = s->head;
-  raised.period_packs = static_cast<double>(HeadPatternPeriod());
+  raised.period_packs = static_cast<double>(HeadPatternPeriod(s->onset));
   raised.period_s = static_cast<double>(heads_) * 3600.0 / PacksPerHour();
   raised.size_sigma = s->shift * sigma_eff_ / baseline_.sigma();
   raised.size_g = *raised.size_sigma * baseline_.sigma();
@@ -667,47 +668,25 @@ void LineMonitor::RunHeads(const Pack& pack, double z, std::vector<Finding>* out
   Emit(std::move(raised), out);
 }
 
-int LineMonitor::HeadPatternPeriod() const {
-  // Per-head means over the recent window; the smallest divisor P of the head count
-  // whose P-periodic pattern explains 75 % of their spread is the period (alternating
-  // packs on an even filler look like every other head off; one bad head gives P = heads).
-  std::array<double, kMaxInferredHeads> sum{};
-  std::array<int, kMaxInferredHeads> count{};
+int LineMonitor::HeadPatternPeriod(std::int64_t onset) const {
+  // Per-head sums since the estimated onset (at least six turns, within the recent
+  // window): packs from before the change only blur the pattern, and fewer turns
+  // leave it to the noise.
   const int heads = std::min(heads_, kMaxInferredHeads);
+  std::array<double, kMaxInferredHeads> count{}, sum{};
+  const std::size_t min_packs = std::min(ring_count_, 6 * static_cast<std::size_t>(heads));
   for (std::size_t i = 0; i < ring_count_; ++i) {
     const Entry& e = Recent(i);
+    if (i >= min_packs && e.index < onset) break;
     if (e.head >= 0 && e.head < heads) {
-      sum[static_cast<std::size_t>(e.head)] += e.z;
-      ++count[static_cast<std::size_t>(e.head)];
+      const auto u = static_cast<std::size_t>(e.head);
+      count[u] += 1.0;
+      sum[u] += e.z;
     }
   }
-  std::array<double, kMaxInferredHeads> mean{};
-  double grand = 0.0;
-  for (int h = 0; h < heads; ++h) {
-    const auto u = static_cast<std::size_t>(h);
-    if (count[u] == 0) return heads;
-    mean[u] = sum[u] / count[u];
-    grand += mean[u] / heads;
-  }
-  double total = 0.0;
-  for (int h = 0; h < heads; ++h)
-    total +=
-        (mean[static_cast<std::size_t>(h)] - grand) * (mean[static_cast<std::size_t>(h)] - grand);
-  if (!(total > 0.0)) return heads;
-  for (int p = 2; p < heads; ++p) {
-    if (heads % p != 0) continue;
-    double within = 0.0;
-    for (int c = 0; c < p; ++c) {
-      double m = 0.0;
-      int k = 0;
-      for (int h = c; h < heads; h += p, ++k) m += mean[static_cast<std::size_t>(h)];
-      m /= k;
-      for (int h = c; h < heads; h += p)
-        within += (mean[static_cast<std::size_t>(h)] - m) * (mean[static_cast<std::size_t>(h)] - m);
-    }
-    if (within < 0.25 * total) return p;
-  }
-  return heads;
+  const auto n = static_cast<std::size_t>(std::max(0, heads));
+  return heft::HeadPatternPeriod(
+      {std::span<const double>(count.data(), n), std::span<const double>(sum.data(), n)});
 }
 
 void LineMonitor::RunSubgroup(const Pack& pack, double z, std::vector<Finding>* out) {

@@ -116,7 +116,7 @@ class LineMonitor {
   bool MaybeReclassifyAsDrift(const Pack& pack, std::vector<Finding>* out);
   bool NoteMeanRaise(const Pack& pack, int side, double size_sigma, std::vector<Finding>* out);
   void RunHeads(const Pack& pack, double z, std::vector<Finding>* out);
-  int HeadPatternPeriod() const;
+  int HeadPatternPeriod(std::int64_t onset) const;
   void RunSubgroup(const Pack& pack, double z, std::vector<Finding>* out);
   void RunSpread(const Pack& pack, double z, std::vector<Finding>* out);
   void RunCycles(const Pack& pack, std::vector<Finding>* out);
