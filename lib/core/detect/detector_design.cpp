@@ -139,9 +139,12 @@ ShiftCusumDesign DesignShiftCusum(double false_alarms_per_day, double packs_per_
   const DesignTargets targets =
       ClampedTargets(false_alarms_per_day, packs_per_minute, min_shift_sigma);
   const double arl0 = targets.packs_per_minute * 60.0 * 24.0 / targets.false_alarms_per_day;
-  CusumDesign cusum;
-  if (DesignCusum(arl0 / kCusumBudgetShare, targets.min_shift_sigma, 0.5, &cusum).ok()) {
-    return {cusum.k, cusum.h};
+  // Only k and h are needed here: DesignCusum's run lengths for the report would
+  // cost five more solves of the ARL integral equation.
+  const double k_design = targets.min_shift_sigma / 2.0;
+  double h = 0.0;
+  if (CusumDecisionIntervalForArl(k_design, arl0 / kCusumBudgetShare, &h).ok()) {
+    return {k_design, h};
   }
   const double k = std::max(0.05, targets.min_shift_sigma / 2.0);  // as DesignDetectors' fallback
   return {k, CusumDecisionInterval(k, arl0 / kCusumBudgetShare)};

@@ -5,6 +5,7 @@
 #include <complex>
 #include <numbers>
 #include <vector>
+#include <utility>
 
 #include "core/detect/mser.h"
 
@@ -146,24 +147,51 @@ SettleEstimate EstimateSettling(std::span<const double> series, std::size_t min_
   // product (cos² = (1 + cos 2ωt)/2, …) are geometric series in closed form, and the
   // data enter once, through Σ yₜzᵗ by Horner's rule. (A loop over t for all seven sums
   // made this grid most of a line's start-up cost.)
-  std::vector<double> periods, zr, zi, yz_re, yz_im;
-  for (double tau = 2.0; tau <= max_tau; tau *= 1.08) {
+  // The grid is τⱼ = 2·1.08ʲ, periodᵢ = 6·1.05ⁱ (≤ n/2 and ≤ 8τ). Its BIC surface is
+  // smooth, so every other point in each direction is fitted first, then the full grid
+  // around the best few of those: a quarter of the fits, and the same optimum
+  // wherever it lies next to one of them (`heft score` settle figures unchanged).
+  auto tau_at = [](int j) { return 2.0 * std::pow(1.08, j); };
+  auto period_at = [](int i) { return 6.0 * std::pow(1.05, i); };
+  auto periods_for = [&](double tau) {  // how many period indices this τ allows
+    const double top = std::min(dn / 2.0, 8.0 * tau);
+    return top < 6.0 ? 0 : static_cast<int>(std::floor(std::log(top / 6.0) / std::log(1.05))) + 1;
+  };
+  const int taus = max_tau < 2.0 ? 0
+                                 : static_cast<int>(std::floor(std::log(max_tau / 2.0) /
+                                                               std::log(1.08))) + 1;
+  struct Fit {
+    double bic;
+    int j, i;
+    double amplitude, level;
+  };
+  constexpr std::size_t kRefine = 3;
+  std::vector<Fit> best_fits;  // the kRefine best of the coarse pass, best first
+  auto keep = [&](const Fit& f) {
+    if (best_fits.size() == kRefine && f.bic >= best_fits.back().bic) return;
+    if (best_fits.size() == kRefine) best_fits.pop_back();
+    best_fits.insert(std::upper_bound(best_fits.begin(), best_fits.end(), f,
+                                      [](const Fit& x, const Fit& y) { return x.bic < y.bic; }),
+                     f);
+  };
+  std::vector<int> chosen;
+  std::vector<double> zr, zi, yz_re, yz_im;
+  // Fits τⱼ with each period index in `chosen`; calls `take` with each fit.
+  auto fit_tau = [&](int j, auto&& take) {
+    const double tau = tau_at(j);
     const double decay = std::exp(-1.0 / tau);
     const std::size_t m = Terms(decay, n);
     const double squares = GeometricSum(decay * decay, m);  // Σ e^{−2αt}
-    periods.clear();
     zr.clear();
     zi.clear();
-    for (double period = 6.0; period <= std::min(dn / 2.0, 8.0 * tau); period *= 1.05) {
-      const std::complex<double> z = std::polar(decay, 2.0 * std::numbers::pi / period);
-      periods.push_back(period);
+    for (int i : chosen) {
+      const std::complex<double> z = std::polar(decay, 2.0 * std::numbers::pi / period_at(i));
       zr.push_back(z.real());
       zi.push_back(z.imag());
     }
     Polynomials(y, m, zr, zi, &yz_re, &yz_im);
-    for (std::size_t k = 0; k < periods.size(); ++k) {
-      const double period = periods[k];
-      const double w = 2.0 * std::numbers::pi / period;
+    for (std::size_t k = 0; k < chosen.size(); ++k) {
+      const double w = 2.0 * std::numbers::pi / period_at(chosen[k]);
       const std::complex<double> z(zr[k], zi[k]);
       const std::complex<double> s1 = GeometricSum(z, m);
       const std::complex<double> s2 = GeometricSum(std::polar(decay * decay, 2.0 * w), m);
@@ -176,16 +204,38 @@ SettleEstimate EstimateSettling(std::span<const double> series, std::size_t min_
       double x[3] = {0, 0, 0};
       if (!Solve(3, a, b, x)) continue;
       const double sse = std::max(1e-300, syy - (x[0] * sy + x[1] * syc + x[2] * sys));
-      const double bic = dn * std::log(sse / dn) + 5.0 * std::log(dn);
-      if (bic < best_bic) {
-        best_bic = bic;
-        e.model = SettleModel::kUnderdamped;
-        e.tau = tau;
-        e.period = period;
-        e.amplitude = std::hypot(x[1], x[2]);
-        level = x[0];
-      }
+      take(Fit{dn * std::log(sse / dn) + 5.0 * std::log(dn), j, chosen[k],
+               std::hypot(x[1], x[2]), x[0]});
     }
+  };
+  for (int j = 0; j < taus; j += 2) {
+    chosen.clear();
+    for (int i = 0; i < periods_for(tau_at(j)); i += 2) chosen.push_back(i);
+    fit_tau(j, keep);
+  }
+  Fit under{INFINITY, -1, -1, 0.0, 0.0};
+  std::vector<std::pair<int, int>> done;  // (j, i) fitted in the refinement
+  for (const Fit& coarse : std::vector<Fit>(best_fits)) {
+    for (int j = std::max(0, coarse.j - 1); j <= std::min(taus - 1, coarse.j + 1); ++j) {
+      chosen.clear();
+      const int top = periods_for(tau_at(j));
+      for (int i = std::max(0, coarse.i - 1); i <= std::min(top - 1, coarse.i + 1); ++i) {
+        if (std::find(done.begin(), done.end(), std::make_pair(j, i)) != done.end()) continue;
+        done.emplace_back(j, i);
+        chosen.push_back(i);
+      }
+      fit_tau(j, [&](const Fit& f) {
+        if (f.bic < under.bic) under = f;
+      });
+    }
+  }
+  if (under.j >= 0 && under.bic < best_bic) {
+    best_bic = under.bic;
+    e.model = SettleModel::kUnderdamped;
+    e.tau = tau_at(under.j);
+    e.period = period_at(under.i);
+    e.amplitude = under.amplitude;
+    level = under.level;
   }
   e.level = level + ref;
   if (e.model == SettleModel::kNone) {

@@ -645,8 +645,18 @@ void LineMonitor::RunHeads(const Pack& pack, double z, std::vector<Finding>* out
   // baseline: when the whole line drifts or steps, no single head is at fault.
   const auto others = static_cast<std::size_t>(head_cusums_.heads() - 1);
   if (ring_count_ <= others) return;
+  // Recent(1..others) in the same order, as at most two runs of the ring (no index
+  // arithmetic per entry: this runs on every pack).
   double others_sum = 0.0;
-  for (std::size_t i = 1; i <= others; ++i) others_sum += Recent(i).z;
+  const std::size_t cap = ring_.size();
+  const std::size_t newest = (ring_next_ + cap - 1) & (cap - 1);
+  const std::size_t before_wrap = std::min(others, newest);  // Recent(1..) down to slot 0
+  const Entry* slot = ring_.data() + newest;
+  for (std::size_t i = 1; i <= before_wrap; ++i)
+    others_sum += slot[-static_cast<std::ptrdiff_t>(i)].z;
+  const Entry* top = ring_.data() + cap;
+  for (std::size_t i = 1; i <= others - before_wrap; ++i)
+    others_sum += top[-static_cast<std::ptrdiff_t>(i)].z;
   const double n_others = static_cast<double>(others);
   const double relative = (z - others_sum / n_others) / std::sqrt(1.0 + 1.0 / n_others);
   const std::optional<HeadSignal> s =
