@@ -20,6 +20,17 @@ void CheckRecord(std::string_view text) {
   heft::RecordView view;
   const heft::RecordParse parse = heft::ParseNativeRecord(text, &view);
   (void)heft::IsNativeHeader(text);
+  // The fast path for the common shape agrees with the general parser.
+  heft::RecordView general;
+  const heft::RecordParse slow = heft::ParseNativeRecordGeneral(text, &general);
+  FUZZ_CHECK(slow.ok() == parse.ok() && slow.error == parse.error && slow.field == parse.field);
+  if (parse.ok()) {
+    FUZZ_CHECK(general.line == view.line && general.head == view.head &&
+               general.has_time == view.has_time && general.time_ms == view.time_ms &&
+               general.status == view.status);
+    FUZZ_CHECK(general.grams == view.grams ||
+               (std::isnan(general.grams) && std::isnan(view.grams)));
+  }
   if (parse.ok()) {
     FUZZ_CHECK(heft::IsNativeLineId(view.line));
     FUZZ_CHECK(std::isfinite(view.grams));

@@ -6,6 +6,7 @@
 
 #include <charconv>
 #include <cstdint>
+#include <cstdio>
 #include <cstring>
 #include <limits>
 #include <optional>
@@ -571,6 +572,51 @@ TEST_CASE("native record: word scan agrees with the byte-by-byte rule", "[record
       CHECK(parse.error != heft::RecordError::kColumnCount);
     }
   }
+}
+
+// The one-pass path for the common record shape against the general parser, on
+// well-formed records and on copies with one to three bytes replaced from an
+// alphabet of the characters that matter to either path.
+TEST_CASE("native record: the common-shape fast path agrees with the general parser", "[record]") {
+  const std::string alphabet = std::string("0123456789,.-:TZ+ \tagk") + '\x01' + '\x80';
+  std::mt19937_64 rng(77);
+  std::uniform_int_distribution<int> digit(0, 9), small(0, 3), line_len(1, 70), head(0, 1200);
+  std::uniform_int_distribution<std::size_t> pick(0, alphabet.size() - 1);
+  int fast_shaped = 0;
+  for (int trial = 0; trial < 200000; ++trial) {
+    char time[40];
+    std::snprintf(time, sizeof time, "20%d%d-0%d-1%dT%d%d:%d%d:%d%d%s", digit(rng), digit(rng),
+                  1 + digit(rng) % 9, digit(rng) % 3, digit(rng) % 3, digit(rng), digit(rng) % 6,
+                  digit(rng), digit(rng) % 7, digit(rng),
+                  small(rng) == 0 ? "Z" : (small(rng) == 0 ? ".5Z" : ".123Z"));
+    std::string text = time;
+    text += ',';
+    const int n_line = small(rng) == 0 ? line_len(rng) : 1 + small(rng) * 3;
+    for (int i = 0; i < n_line; ++i) text += "ab-_.9"[digit(rng) % 6];
+    text += ',' + std::to_string(head(rng)) + ',';
+    if (small(rng) == 0) text += '-';
+    text += std::to_string(digit(rng) * 97 + digit(rng)) + "." + std::to_string(digit(rng));
+    for (int edits = small(rng); edits > 0; --edits) {
+      text[std::uniform_int_distribution<std::size_t>(0, text.size() - 1)(rng)] =
+          alphabet[pick(rng)];
+    }
+    heft::RecordView fast, general;
+    const heft::RecordParse a = heft::ParseNativeRecord(text, &fast);
+    const heft::RecordParse b = heft::ParseNativeRecordGeneral(text, &general);
+    INFO(text);
+    REQUIRE(a.ok() == b.ok());
+    REQUIRE(a.error == b.error);
+    REQUIRE(a.field == b.field);
+    if (!a.ok()) continue;
+    ++fast_shaped;
+    REQUIRE(fast.line == general.line);
+    REQUIRE(fast.head == general.head);
+    REQUIRE(fast.has_time == general.has_time);
+    REQUIRE(fast.time_ms == general.time_ms);
+    REQUIRE(fast.status == general.status);
+    REQUIRE(std::memcmp(&fast.grams, &general.grams, sizeof fast.grams) == 0);
+  }
+  CHECK(fast_shaped > 40000);  // the well-formed share really was parsed
 }
 
 // The framer's word-at-a-time terminator search against a plain byte loop, from every

@@ -97,6 +97,7 @@ LineMonitor::LineMonitor(std::string line, const LineSettings& settings, DesignC
   learn_heads_.reserve(learn_capacity_);
   learn_indexes_.reserve(learn_capacity_);
   ring_.resize(cycles_.window());
+  ring_white_.resize(cycles_.window());
   cycle_buffer_.resize(cycles_.window());
   scratch_.reserve(cycles_.window());
   stuck_chance_ = 1.0 / (kMinorShare * design_.arl0_packs);
@@ -433,6 +434,7 @@ void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
   Entry& e = ring_[ring_next_];
   e.z = z;
   e.white = z - baseline_.phi() * last_z_;
+  ring_white_[ring_next_] = e.white;
   e.index = pack.index;
   e.time_ms = pack.time_ms;
   e.head = pack.head;
@@ -722,8 +724,7 @@ void LineMonitor::RunSubgroup(const Pack& pack, double z, std::vector<Finding>* 
   raised.detector = detector;
   if (kind == FindingKind::kOscillation && ring_count_ == ring_.size()) {
     // Say how long the cycle is, if the periodogram can tell.
-    const std::size_t n = ring_.size();
-    for (std::size_t i = 0; i < n; ++i) cycle_buffer_[i] = Recent(n - 1 - i).white;
+    FillCycleBuffer();
     const PeriodicityResult r = cycles_.Evaluate(cycle_buffer_);
     if (r.p_value < 1e-3) {
       raised.period_packs = r.period;
@@ -757,16 +758,21 @@ void LineMonitor::RunSpread(const Pack& pack, double z, std::vector<Finding>* ou
   spread_.Reset();
 }
 
+void LineMonitor::FillCycleBuffer() {
+  // Oldest first: the full ring from the next write slot round to the newest.
+  const std::size_t n = ring_white_.size();
+  const auto older = static_cast<std::ptrdiff_t>(ring_next_);
+  std::copy(ring_white_.begin() + older, ring_white_.end(), cycle_buffer_.begin());
+  std::copy(ring_white_.begin(), ring_white_.begin() + older,
+            cycle_buffer_.begin() + static_cast<std::ptrdiff_t>(n - ring_next_));
+}
+
 void LineMonitor::RunCycles(const Pack& pack, std::vector<Finding>* out) {
   if (++since_cycle_test_ < std::max(1, settings_.cycle_every_packs)) return;
   if (ring_count_ < ring_.size()) return;
   since_cycle_test_ = 0;
   const std::size_t n = ring_.size();
-  // Oldest first: the ring from the next write slot round to the newest.
-  for (std::size_t i = 0; i < n; ++i) {
-    const std::size_t at = ring_next_ + i;
-    cycle_buffer_[i] = ring_[at < n ? at : at - n].white;
-  }
+  FillCycleBuffer();
   const PeriodicityResult r = cycles_.Evaluate(cycle_buffer_);
   const int slot = Slot(FindingKind::kOscillation);
   // Amplitude back in z units: whitening scaled the cycle by |1 − φe^{−iω}|.

@@ -210,6 +210,7 @@ class LineMonitor {
   double spread_k_ = 0.5, spread_h_ = 5.0;
   PeriodicityTest cycles_;
   std::vector<double> cycle_buffer_;
+  void FillCycleBuffer();  // the ring's whitened values, oldest first
   double cycle_p_threshold_ = 1e-6;
   std::int64_t since_cycle_test_ = 0;
   StuckReading stuck_;
@@ -218,6 +219,7 @@ class LineMonitor {
 
   // Recent running packs (ring; capacity = cycle window).
   std::vector<Entry> ring_;
+  std::vector<double> ring_white_;  // ring_[i].white again, contiguous for the periodogram
   std::size_t ring_next_ = 0;
   std::size_t ring_count_ = 0;
   double last_z_ = 0.0;

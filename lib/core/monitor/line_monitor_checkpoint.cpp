@@ -172,6 +172,7 @@ Status LineMonitor::RestoreCheckpoint(const LineMonitorCheckpoint& c) {
   for (std::size_t i = 0; i < c.ring.size(); ++i) {
     const LineMonitorCheckpoint::Entry& e = c.ring[i];
     ring_[i] = {e.z, e.white, e.index, e.time_ms, e.head};
+    ring_white_[i] = e.white;
   }
   ring_count_ = c.ring.size();
   ring_next_ = ring_count_ % ring_.size();

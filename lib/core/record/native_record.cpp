@@ -125,6 +125,13 @@ bool ParseIsoTime(std::string_view s, std::int64_t* time_ms) {
   }
   // Leap seconds (:60) are refused: epoch time has no place for them.
   if (second > 59) return false;
+  // The usual tail, ".fffZ", read straight.
+  if (s.size() == 24 && s[19] == '.' && s[23] == 'Z' && IsDigit(s[20]) && IsDigit(s[21]) &&
+      IsDigit(s[22])) {
+    *time_ms = base_ms + second * std::int64_t{1000} +
+               ((s[20] - '0') * 100 + (s[21] - '0') * 10 + (s[22] - '0'));
+    return true;
+  }
   std::size_t pos = 19;
   int millis = 0;
   if (s[pos] == '.') {
@@ -370,7 +377,52 @@ std::string_view RecordErrorName(RecordError error) {
   return "unknown";
 }
 
+// The shape nearly every record of a live feed has, "ISO-time,line,head,weight" with
+// no blanks, no unit and no status, read in one pass with the same field parsers as
+// below. Anything else (or anything wrong) returns false and the general path
+// decides, so a record this accepts is one that path accepts with the same fields.
+bool ParseCommonShape(std::string_view text, RecordView* out) {
+  const std::size_t n = text.size();
+  if (n < 26 || text[4] != '-') return false;  // 20-char time, then ",l,h,w" at least
+  // Time: up to the first comma (an ISO time holds none).
+  std::size_t i = 20;
+  while (i < n && text[i] != ',') ++i;
+  if (i >= n || !ParseIsoTime(text.substr(0, i), &out->time_ms)) return false;
+  // Line id: line-id characters up to the next comma.
+  const std::size_t line_start = ++i;
+  while (i < n && IsLineIdChar(text[i])) ++i;
+  if (i >= n || text[i] != ',' || i == line_start || i - line_start > kMaxLineIdLength) {
+    return false;
+  }
+  out->line = text.substr(line_start, i - line_start);
+  // Head: one or more digits up to the next comma.
+  const std::size_t head_start = ++i;
+  int head = 0;
+  while (i < n && IsDigit(text[i])) {
+    head = head * 10 + (text[i] - '0');
+    if (head > kMaxHead) return false;
+    ++i;
+  }
+  if (i >= n || text[i] != ',' || i == head_start) return false;
+  out->head = head;
+  // Weight: a plain decimal that ends the record.
+  const std::string_view weight = text.substr(i + 1);
+  if (weight.empty() || (!IsDigit(weight.front()) && weight.front() != '-')) return false;
+  if (ParsePlainDecimal(weight, &out->grams) != weight.size()) return false;
+  out->has_time = true;
+  out->status = PackStatus::kOk;
+  return true;
+}
+
 RecordParse ParseNativeRecord(std::string_view text, RecordView* out) {
+  if (RecordView fast; ParseCommonShape(text, &fast)) {
+    *out = fast;
+    return RecordParse{};
+  }
+  return ParseNativeRecordGeneral(text, out);
+}
+
+RecordParse ParseNativeRecordGeneral(std::string_view text, RecordView* out) {
   std::array<std::size_t, kMaxFields + 1> starts{};
   std::size_t fields = 1;
   if (!ScanFields(text, &starts, &fields)) return Fail(RecordError::kBinary, -1);

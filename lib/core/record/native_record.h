@@ -31,7 +31,7 @@ enum class RecordError : std::uint8_t {
   kBadWeight,
   kBadUnit,
   kBadStatus,
-  kTooLong,      // over the framer's maximum length (reported by the framer's user)
+  kTooLong,  // over the framer's maximum length (reported by the framer's user)
   // Configured (non-native) formats, core/record/record_format.h:
   kMissingField,  // a required field (weight, line) is not in the record
   kNoMatch,       // the record does not match the source's pattern
@@ -43,13 +43,16 @@ std::string_view RecordErrorName(RecordError error);
 
 struct RecordParse {
   RecordError error = RecordError::kNone;
-  int field = -1;  // 0-based field (column) where the problem is, or -1
+  int field = -1;               // 0-based field (column) where the problem is, or -1
   std::string_view field_name;  // static name (RecordFieldName) for configured formats, or ""
   bool ok() const { return error == RecordError::kNone; }
 };
 
 // Parses one record without its terminator into *out (views into `text`).
 RecordParse ParseNativeRecord(std::string_view text, RecordView* out);
+// The same without the one-pass fast path for the common shape (ISO time, no blanks,
+// no unit, no status): what ParseNativeRecord must agree with, for tests and fuzzing.
+RecordParse ParseNativeRecordGeneral(std::string_view text, RecordView* out);
 
 // True if `text` is the native header line.
 bool IsNativeHeader(std::string_view text);
