@@ -382,6 +382,13 @@ void LineMonitor::UpdateAllowances() {
       baseline_.AutocorrelationInflation() * (1.0 + 0.5 * c_scale * se_inflation * se_inflation);
   const double se_level = baseline_.LevelStdError() / baseline_.AutocorrelationInflation();
   level_allow_ = 0.5 * c_level * se_level * se_level;
+  // The spread CUSUM is far more sensitive to σ̂ than the mean CUSUM: σ̂ low by a
+  // share ε moves each standardised ln s² by 2ε/sd(ln s²). Same rule, its own c.
+  const double spread_b = spread_h_ + 1.166;
+  const double c_spread = std::max(0.0, 2.0 * spread_b - 2.0 / std::max(0.05, spread_k_)) * 2.0 /
+                          std::max(1e-6, spread_.LogSd());
+  spread_z_factor_ =
+      (1.0 + 0.5 * c_scale * se_sigma * se_sigma) / (1.0 + 0.5 * c_spread * se_sigma * se_sigma);
   subgroup_sd_ = std::sqrt(MeanVarianceFactor(subgroup_n_, baseline_.phi()) / subgroup_n_);
   head_allow_.assign(static_cast<std::size_t>(std::max(0, heads_)), 0.0);
   for (int h = 0; h < heads_; ++h) {
@@ -446,7 +453,9 @@ void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
   RunMean(pack, z_mean, out);
   RunHeads(pack, z_mean, out);
   RunSubgroup(pack, z_mean, out);
-  RunSpread(pack, pack.head == off_head_ && off_head_ >= 0 ? z - off_head_shift_ : z, out);
+  RunSpread(pack,
+            spread_z_factor_ * (pack.head == off_head_ && off_head_ >= 0 ? z - off_head_shift_ : z),
+            out);
   RunCycles(pack, out);
   RefreshBaseline(pack, !outlier);
 }

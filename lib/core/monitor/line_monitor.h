@@ -208,6 +208,7 @@ class LineMonitor {
   RunRules rules_;
   LogVarianceCusum spread_;
   double spread_k_ = 0.5, spread_h_ = 5.0;
+  double spread_z_factor_ = 1.0;  // z to the spread detector's own σ allowance
   PeriodicityTest cycles_;
   std::vector<double> cycle_buffer_;
   void FillCycleBuffer();  // the ring's whitened values, oldest first
