@@ -27,10 +27,10 @@ constexpr double kCreepGrowthSigma = 0.2;  // ... if the level kept moving away 
 // Shares of the line's false-alarm budget, as multiples of its in-control ARL. The
 // CUSUM (1/2) and individuals limit (1/4) shares are set by DesignDetectors; the EWMA
 // gets 1/4 and the head CUSUMs, run rules, spread, periodogram and stuck test 1/16
-// each. The shares add up to about 1.3 budgets before the allowances for baseline
-// error and autocorrelation, which make every detector more conservative than its
-// share; `heft score` measures the rate that results (about 0.4 per 100,000
-// in-control packs, 0.7 a day at 120 packs/min, against a budget of 1 a day).
+// each. The shares add up to about 1.3 budgets, but several designs err on the quiet
+// side (normal theory for the skewed log χ², the run rules' discrete counts) and the
+// detectors overlap; `heft score` measures the rate that results (about 0.45 per
+// 100,000 in-control packs, 0.8 a day at 120 packs/min, against a budget of 1 a day).
 constexpr double kEwmaShare = 4.0;
 constexpr double kMinorShare = 16.0;
 constexpr std::size_t kShapePrePacks = 30;  // packs before the onset in the shape fit
