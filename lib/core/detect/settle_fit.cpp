@@ -4,8 +4,8 @@
 #include <cmath>
 #include <complex>
 #include <numbers>
-#include <vector>
 #include <utility>
+#include <vector>
 
 #include "core/detect/mser.h"
 
@@ -157,9 +157,9 @@ SettleEstimate EstimateSettling(std::span<const double> series, std::size_t min_
     const double top = std::min(dn / 2.0, 8.0 * tau);
     return top < 6.0 ? 0 : static_cast<int>(std::floor(std::log(top / 6.0) / std::log(1.05))) + 1;
   };
-  const int taus = max_tau < 2.0 ? 0
-                                 : static_cast<int>(std::floor(std::log(max_tau / 2.0) /
-                                                               std::log(1.08))) + 1;
+  const int taus = max_tau < 2.0
+                       ? 0
+                       : static_cast<int>(std::floor(std::log(max_tau / 2.0) / std::log(1.08))) + 1;
   struct Fit {
     double bic;
     int j, i;
@@ -204,8 +204,8 @@ SettleEstimate EstimateSettling(std::span<const double> series, std::size_t min_
       double x[3] = {0, 0, 0};
       if (!Solve(3, a, b, x)) continue;
       const double sse = std::max(1e-300, syy - (x[0] * sy + x[1] * syc + x[2] * sys));
-      take(Fit{dn * std::log(sse / dn) + 5.0 * std::log(dn), j, chosen[k],
-               std::hypot(x[1], x[2]), x[0]});
+      take(Fit{dn * std::log(sse / dn) + 5.0 * std::log(dn), j, chosen[k], std::hypot(x[1], x[2]),
+               x[0]});
     }
   };
   for (int j = 0; j < taus; j += 2) {
