@@ -856,7 +856,7 @@ void LineMonitor::RunStuck(const Pack& pack, std::vector<Finding>* out) {
   } else if (e == StuckReading::Event::kReleased && open_[Slot(FindingKind::kStuck)]) {
     Finding cleared = Make(Transition::kCleared, FindingKind::kStuck, Severity::kInfo, pack);
     cleared.onset = stuck_start_index_;
-    cleared.end = last_index_ > 0 ? pack.index : pack.index;
+    cleared.end = pack.index;  // the first reading that moved
     cleared.detector = "stuck_reading";
     Emit(std::move(cleared), out);
     stuck_start_index_ = pack.index;
