@@ -390,8 +390,14 @@ def reload_storm(args, tmp):
         sender = Sender(daemon.port, feed)
         sender.start()
         for i in range(200):
-            with open(config, "w") as f:
+            # Each version replaces the file whole (write, then rename), as an editor or a
+            # deployment tool does: a file rewritten in place can be read half-written,
+            # and a valid prefix of it is a different configuration (defaults for the
+            # rest: once it turned raw retention on and pruned this March feed).
+            staged = config + ".new"
+            with open(staged, "w") as f:
                 f.write((edited, broken, good)[i % 3])
+            os.replace(staged, config)
             os.kill(daemon.proc.pid, signal.SIGHUP)
             time.sleep(0.005)
         sender.join(120)
