@@ -619,8 +619,8 @@ TEST_CASE("native record: the common-shape fast path agrees with the general par
   CHECK(fast_shaped > 40000);  // the well-formed share really was parsed
 }
 
-// The framer's word-at-a-time terminator search against a plain byte loop, from every
-// start position of random buffers dense in LF, CR and bytes one off from them.
+// The framer's block terminator search (SSE2 or word-at-a-time) against a plain byte loop, from
+// every start position of random buffers dense in LF, CR and bytes one off from them.
 TEST_CASE("line framer: terminator search agrees with a byte loop", "[record]") {
   const std::string alphabet = std::string("ab,\n\r") + '\x0b' + '\x0c' + '\x09' + '\x8a' + '\x8d';
   std::mt19937_64 rng(11);

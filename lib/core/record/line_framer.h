@@ -13,18 +13,32 @@
 #include <cstring>
 #include <string>
 #include <string_view>
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#endif
 
 namespace heft {
 
 class LineFramer {
  public:
-  // Index of the first LF or CR at or after `pos`, or bytes.size(). Eight bytes at a
-  // time with exact per-byte zero masks (no carries between bytes): records are short,
-  // so a library memchr's call overhead would cost more than it saves.
+  // Index of the first LF or CR at or after `pos`, or bytes.size(). Sixteen bytes at a
+  // time with SSE2 compares (every x86-64 has them), else eight at a time with exact
+  // per-byte zero masks (no carries between bytes): records are short, so a library
+  // memchr's call overhead would cost more than it saves.
   static std::size_t FindTerminator(std::string_view bytes, std::size_t pos) {
+    const std::size_t n = bytes.size();
+#if defined(__SSE2__)
+    const __m128i lf = _mm_set1_epi8('\n'), cr = _mm_set1_epi8('\r');
+    for (; pos + 16 <= n; pos += 16) {
+      const __m128i x = _mm_loadu_si128(reinterpret_cast<const __m128i*>(bytes.data() + pos));
+      const int hits =
+          _mm_movemask_epi8(_mm_or_si128(_mm_cmpeq_epi8(x, lf), _mm_cmpeq_epi8(x, cr)));
+      if (hits != 0)
+        return pos + static_cast<std::size_t>(std::countr_zero(static_cast<unsigned>(hits)));
+    }
+#else
     static_assert(std::endian::native == std::endian::little, "FindTerminator reads words");
     constexpr std::uint64_t kOnes = 0x0101010101010101ULL, kLows = 0x7F7F7F7F7F7F7F7FULL;
-    const std::size_t n = bytes.size();
     for (; pos + 8 <= n; pos += 8) {
       std::uint64_t x;
       std::memcpy(&x, bytes.data() + pos, 8);
@@ -33,6 +47,7 @@ class LineFramer {
           ~(((lf & kLows) + kLows) | lf | kLows) | ~(((cr & kLows) + kLows) | cr | kLows);
       if (hits != 0) return pos + static_cast<std::size_t>(std::countr_zero(hits)) / 8;
     }
+#endif
     while (pos < n && bytes[pos] != '\n' && bytes[pos] != '\r') ++pos;
     return pos;
   }
