@@ -41,6 +41,14 @@ TEST_CASE("EWMA ARL (Brook-Evans chain) reproduces Lucas & Saccucci", "[detect][
   CHECK(EwmaChart::Arl(0.10, 2.7, 0.0, 201) == Approx(369.0).epsilon(0.01));
   // Solving back for L.
   CHECK(EwmaChart::LimitForArl(0.10, 499.6, 201) == Approx(2.814).margin(0.01));
+  // The root is solved tightly: the chain at the L found gives the target back.
+  for (const double arl0 : {370.0, 5000.0, 200000.0}) {
+    const double l = EwmaChart::LimitForArl(0.05, arl0, 61);
+    CHECK(EwmaChart::Arl(0.05, l, 0.0, 61) == Approx(arl0).epsilon(1e-8));
+  }
+  // Targets outside what L in [0.5, 8] can give stop at the ends.
+  CHECK(EwmaChart::LimitForArl(0.05, 1.0, 61) == 0.5);
+  CHECK(EwmaChart::LimitForArl(0.05, 1e300, 61) == 8.0);
 }
 
 TEST_CASE("EWMA chart reproduces the NIST e-Handbook §6.3.2.4 example", "[detect][ewma]") {

@@ -12,6 +12,7 @@
 
 #include "core/design/cusum_arl.h"
 #include "core/design/ewma_arl.h"
+#include "core/design/illinois_root.h"
 #include "core/design/standard_normal.h"
 
 namespace heft {
@@ -24,30 +25,6 @@ std::string G(double v) {
   char buffer[32];
   std::snprintf(buffer, sizeof buffer, "%.6g", v);
   return buffer;
-}
-
-// Root of f (increasing) in [lo, hi] with f(lo) < 0 < f(hi): Illinois method.
-double Illinois(const std::function<double(double)>& f, double lo, double f_lo, double hi,
-                double f_hi, double tolerance) {
-  int side = 0;
-  double x = lo;
-  for (int iteration = 0; iteration < 100 && hi - lo > tolerance; ++iteration) {
-    x = (lo * f_hi - hi * f_lo) / (f_hi - f_lo);
-    if (!(x > lo && x < hi)) x = 0.5 * (lo + hi);
-    const double fx = f(x);
-    if (fx == 0.0) return x;
-    if (fx < 0.0) {
-      lo = x, f_lo = fx;
-      if (side == -1) f_hi *= 0.5;
-      side = -1;
-    } else {
-      hi = x, f_hi = fx;
-      if (side == +1) f_lo *= 0.5;
-      side = +1;
-    }
-    if (std::fabs(fx) < 1e-12) return x;
-  }
-  return x;
 }
 
 // log(ARL) − log(target); non-finite ARLs count as "too large".
@@ -81,7 +58,7 @@ Status CusumDecisionIntervalForArl(double k, double target_arl0, double* h) {
     if (hi > 400.0) return Status::Error("CUSUM decision interval above 400 sigma: k too small");
     f_hi = f(hi);
   }
-  *h = Illinois(f, lo, f_lo, hi, f_hi, 1e-9);
+  *h = IllinoisRoot(f, lo, f_lo, hi, f_hi, 1e-9);
   return Status::Ok();
 }
 
@@ -132,7 +109,7 @@ Status EwmaLimitForArl(double lambda, double target_arl0, double* limit) {
     f_hi = f(hi);
   }
   if (f_lo > 0.0) return Status::Error("EWMA limit below 0.001 sigma: target ARL too small");
-  *limit = Illinois(f, lo, f_lo, hi, f_hi, 1e-9);
+  *limit = IllinoisRoot(f, lo, f_lo, hi, f_hi, 1e-9);
   return Status::Ok();
 }
 

@@ -3,12 +3,16 @@
 #include <cmath>
 #include <vector>
 
+#include "core/design/illinois_root.h"
+
 namespace heft {
 namespace {
 double Phi(double x) { return 0.5 * std::erfc(-x / std::sqrt(2.0)); }
 }  // namespace
 
-double EwmaChart::HalfWidth() const { return limit_l_ * std::sqrt(lambda_ / (2.0 - lambda_)); }
+double EwmaChart::AsymptoticHalfWidth(double lambda, double limit_l) {
+  return limit_l * std::sqrt(lambda / (2.0 - lambda));
+}
 
 EwmaChart::Signal EwmaChart::Update(double x, double allowance) {
   value_ += lambda_ * (x - value_);
@@ -33,14 +37,18 @@ double EwmaChart::Arl(double lambda, double limit_l, double delta, int cells) {
   // A = I − Q (row-major), solve A·arl = 1 by Gaussian elimination with partial pivoting.
   std::vector<double> a(static_cast<std::size_t>(m) * m);
   std::vector<double> b(static_cast<std::size_t>(m), 1.0);
+  // Each row's cells share their edges: one normal CDF per edge, not two per cell.
+  std::vector<double> edge_cdf(static_cast<std::size_t>(m) + 1);
   for (int i = 0; i < m; ++i) {
     const double ci = -h + (i + 0.5) * w;
+    for (int j = 0; j <= m; ++j) {
+      // P((1−λ)cᵢ + λX < edge j), X ~ N(delta, 1).
+      edge_cdf[static_cast<std::size_t>(j)] =
+          Phi((-h + j * w - (1.0 - lambda) * ci) / lambda - delta);
+    }
     for (int j = 0; j < m; ++j) {
-      const double lo = -h + j * w;
-      const double hi = lo + w;
-      // P(lo < (1−λ)cᵢ + λX < hi), X ~ N(delta, 1).
-      const double p = Phi((hi - (1.0 - lambda) * ci) / lambda - delta) -
-                       Phi((lo - (1.0 - lambda) * ci) / lambda - delta);
+      const double p =
+          edge_cdf[static_cast<std::size_t>(j) + 1] - edge_cdf[static_cast<std::size_t>(j)];
       a[static_cast<std::size_t>(i) * m + j] = (i == j ? 1.0 : 0.0) - p;
     }
   }
@@ -78,15 +86,18 @@ double EwmaChart::Arl(double lambda, double limit_l, double delta, int cells) {
 }
 
 double EwmaChart::LimitForArl(double lambda, double arl0, int cells) {
-  double lo = 0.5, hi = 8.0;
-  for (int i = 0; i < 40; ++i) {  // ARL grows with L
-    const double mid = 0.5 * (lo + hi);
-    if (Arl(lambda, mid, 0.0, cells) < arl0)
-      lo = mid;
-    else
-      hi = mid;
-  }
-  return hi;
+  // ln ARL is smooth and nearly quadratic in L: the Illinois method needs a dozen
+  // chain solves where bisection over [0.5, 8] to the same 1e-9 needed forty.
+  // A non-finite ARL (a limit far too wide) counts as too large.
+  auto gap = [&](double limit) {
+    const double arl = Arl(lambda, limit, 0.0, cells);
+    return std::isfinite(arl) && arl > 0.0 ? std::log(arl) - std::log(arl0) : 1e3;
+  };
+  const double lo = 0.5, hi = 8.0;
+  const double f_lo = gap(lo), f_hi = gap(hi);
+  if (!(f_lo < 0.0)) return lo;
+  if (!(f_hi > 0.0)) return hi;
+  return IllinoisRoot(gap, lo, f_lo, hi, f_hi, 1e-9);
 }
 
 }  // namespace heft

@@ -11,7 +11,8 @@ namespace heft {
 
 class EwmaChart {
  public:
-  EwmaChart(double lambda, double limit_l) : lambda_(lambda), limit_l_(limit_l) {}
+  EwmaChart(double lambda, double limit_l)
+      : lambda_(lambda), limit_l_(limit_l), half_width_(AsymptoticHalfWidth(lambda, limit_l)) {}
 
   enum class Signal { kNone, kUp, kDown };
 
@@ -28,14 +29,15 @@ class EwmaChart {
   double lambda() const { return lambda_; }
   double limit_l() const { return limit_l_; }
   // Asymptotic half-width L·√(λ/(2−λ)).
-  double HalfWidth() const;
+  double HalfWidth() const { return half_width_; }
+  static double AsymptoticHalfWidth(double lambda, double limit_l);
 
   // Time-varying limit factor L·√(λ/(2−λ)·(1 − (1−λ)^{2i})) for step i ≥ 1.
   static double LimitFactor(double lambda, double limit_l, int i);
   // Zero-state ARL (start at 0) with asymptotic limits when the mean is delta (σ units);
   // Brook–Evans chain with `cells` cells (odd, so that 0 is a cell midpoint).
   static double Arl(double lambda, double limit_l, double delta, int cells = 101);
-  // L that gives in-control ARL `arl0` (bisection on Arl, `cells` cells).
+  // L that gives in-control ARL `arl0` (Illinois root of ln Arl, `cells` cells).
   static double LimitForArl(double lambda, double arl0, int cells = 61);
 
   // Restart checkpoint (line_monitor_checkpoint.h): the running statistics as plain values;
@@ -53,6 +55,7 @@ class EwmaChart {
  private:
   double lambda_;
   double limit_l_;
+  double half_width_;  // HalfWidth(), fixed with λ and L: Update needs it every pack
   double value_ = 0.0;
   long steps_ = 0;
 };
