@@ -219,6 +219,7 @@ void LineMonitor::Start(const Pack& pack, std::vector<Finding>* out) {
   stuck_.Reset();
   ring_count_ = 0;
   ring_next_ = 0;
+  turn_sum_fixed_ = 0;
   outlier_side_run_ = 0;
   if (!open_[Slot(FindingKind::kSettling)]) {
     Finding raised = Make(Transition::kRaised, FindingKind::kSettling, Severity::kInfo, pack);
@@ -322,6 +323,7 @@ void LineMonitor::ArmDetectors() {
     head_k_ = std::max(0.25, settings_.head_shift_sigma / 2.0);
     head_h_ = CusumDecisionInterval(head_k_, kMinorShare * design_.arl0_packs);
     head_cusums_ = HeadCusums(heads_, head_k_, head_h_);
+    head_relative_scale_ = 1.0 / std::sqrt(1.0 + 1.0 / static_cast<double>(heads_ - 1));
   } else {
     head_cusums_ = HeadCusums(0, 1.0, 6.0);
   }
@@ -355,6 +357,7 @@ void LineMonitor::ArmDetectors() {
   block_count_ = 0;
   block_clean_ = true;
   ring_count_ = ring_next_ = 0;
+  turn_sum_fixed_ = 0;
   last_z_ = 0.0;
   UpdateAllowances();
 }
@@ -394,6 +397,21 @@ void LineMonitor::UpdateAllowances() {
   for (int h = 0; h < heads_; ++h) {
     head_allow_[static_cast<std::size_t>(h)] = baseline_.OffsetStdError(h);
   }
+}
+
+std::int64_t LineMonitor::FixedZ(double z) {
+  // |z| is capped far beyond any alarm so that 2^32·z and a turn's sum stay in range.
+  if (!std::isfinite(z)) return 0;
+  // Truncation (one instruction) rather than llround (a library call): any fixed
+  // rule will do, as long as adding and removing a value use the same one.
+  return static_cast<std::int64_t>(std::clamp(z, -1e6, 1e6) * kFixedZScale);
+}
+
+void LineMonitor::RebuildTurnSum() {
+  turn_sum_fixed_ = 0;
+  if (heads_ < 2) return;
+  const std::size_t n = std::min(ring_count_, static_cast<std::size_t>(heads_));
+  for (std::size_t i = 0; i < n; ++i) turn_sum_fixed_ += FixedZ(Recent(i).z);
 }
 
 const LineMonitor::Entry& LineMonitor::Recent(std::size_t back) const {
@@ -448,6 +466,11 @@ void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
   ring_next_ = (ring_next_ + 1) & (ring_.size() - 1);
   ring_count_ = std::min(ring_count_ + 1, ring_.size());
   last_z_ = z;
+  if (heads_ >= 2) {  // keep the last turn's sum for RunHeads
+    const auto turn = static_cast<std::size_t>(heads_);
+    turn_sum_fixed_ += FixedZ(z);
+    if (ring_count_ > turn) turn_sum_fixed_ -= FixedZ(Recent(turn).z);
+  }
 
   const double z_mean = z / spread_scale_;
   RunMean(pack, z_mean, out);
@@ -656,20 +679,9 @@ void LineMonitor::RunHeads(const Pack& pack, double z, std::vector<Finding>* out
   // baseline: when the whole line drifts or steps, no single head is at fault.
   const auto others = static_cast<std::size_t>(head_cusums_.heads() - 1);
   if (ring_count_ <= others) return;
-  // Recent(1..others) in the same order, as at most two runs of the ring (no index
-  // arithmetic per entry: this runs on every pack).
-  double others_sum = 0.0;
-  const std::size_t cap = ring_.size();
-  const std::size_t newest = (ring_next_ + cap - 1) & (cap - 1);
-  const std::size_t before_wrap = std::min(others, newest);  // Recent(1..) down to slot 0
-  const Entry* slot = ring_.data() + newest;
-  for (std::size_t i = 1; i <= before_wrap; ++i)
-    others_sum += slot[-static_cast<std::ptrdiff_t>(i)].z;
-  const Entry* top = ring_.data() + cap;
-  for (std::size_t i = 1; i <= others - before_wrap; ++i)
-    others_sum += top[-static_cast<std::ptrdiff_t>(i)].z;
-  const double n_others = static_cast<double>(others);
-  const double relative = (z - others_sum / n_others) / std::sqrt(1.0 + 1.0 / n_others);
+  const double others_sum =
+      static_cast<double>(turn_sum_fixed_ - FixedZ(Recent(0).z)) / kFixedZScale;
+  const double relative = (z - others_sum / static_cast<double>(others)) * head_relative_scale_;
   const std::optional<HeadSignal> s =
       head_cusums_.Update(pack.head, relative, pack.index, allowance);
   if (!s || open_[Slot(FindingKind::kOscillation)]) return;

@@ -192,7 +192,8 @@ class LineMonitor {
   double head_k_ = 1.0;
   double head_h_ = 6.0;
   HeadCusums head_cusums_;
-  std::vector<double> head_allow_;  // per-head offset standard errors, σ units
+  std::vector<double> head_allow_;    // per-head offset standard errors, σ units
+  double head_relative_scale_ = 1.0;  // 1/√(1 + 1/(heads − 1)): sd of z − mean of others
   // The head named by the open oscillation finding and how far it sits from the other
   // heads (z units): the spread detector sees that head's packs re-centred, so one
   // bad head, already reported, does not also read as rising spread over and over.
@@ -224,6 +225,14 @@ class LineMonitor {
   std::size_t ring_next_ = 0;
   std::size_t ring_count_ = 0;
   double last_z_ = 0.0;
+  // Σ z over the newest heads_ ring entries (the last turn), in fixed point: the head
+  // detector needs the other heads' sum on every pack, and integer sums are exact
+  // whatever the order of adds and removes, so a sum rebuilt after a restart is the
+  // very one kept running.
+  static std::int64_t FixedZ(double z);
+  static constexpr double kFixedZScale = 4294967296.0;  // 2^32 per unit of z
+  std::int64_t turn_sum_fixed_ = 0;
+  void RebuildTurnSum();
   std::vector<double> scratch_;  // classification window, sized once
 
   std::int64_t outlier_last_index_ = 0;

@@ -176,6 +176,7 @@ Status LineMonitor::RestoreCheckpoint(const LineMonitorCheckpoint& c) {
   }
   ring_count_ = c.ring.size();
   ring_next_ = ring_count_ % ring_.size();
+  RebuildTurnSum();
   last_z_ = c.last_z;
   outlier_last_index_ = c.outlier_last_index;
   outlier_last_pack_ = c.outlier_last_pack;
