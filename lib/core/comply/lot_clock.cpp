@@ -109,6 +109,11 @@ bool LotClock::StartsNewLot(std::int64_t time_ms, std::int64_t packs_in_current_
       return first || packs_in_current_lot >= policy_.packs_per_lot;
     case LotBoundary::kHour:
     case LotBoundary::kShifts: {
+      // Within the current hour: no division needed (this runs for every pack).
+      if (policy_.boundary == LotBoundary::kHour && current_period_ &&
+          time_ms >= *current_period_ && time_ms - *current_period_ < kHourMs) {
+        return first;
+      }
       const std::int64_t period = PeriodStartMs(time_ms);
       const bool changed = !current_period_ || *current_period_ != period;
       current_period_ = period;

@@ -42,10 +42,16 @@ void RollingMoments::Recompute() {
   // Re-centre on the current mean: d = x − reference then stays of the order of the spread.
   sums_.StartRebase(Mean());
   sum_mr_ = 0.0;
+  const std::size_t cap = buffer_.size();
+  std::size_t slot = head_ + cap - count_;
+  if (slot >= cap) slot -= cap;
+  double previous = 0.0;
   for (std::size_t i = 0; i < count_; ++i) {
-    const double x = At(i);
+    const double x = buffer_[slot];
+    slot = slot + 1 == cap ? 0 : slot + 1;
     sums_.Add(x);
-    if (i > 0) sum_mr_ += std::fabs(x - At(i - 1));
+    if (i > 0) sum_mr_ += std::fabs(x - previous);
+    previous = x;
   }
 }
 
@@ -87,15 +93,16 @@ double RollingMoments::MeanMovingRange() const {
 double RollingMoments::MovingRangeSigma() const { return MeanMovingRange() / kD2Span2; }
 
 double RollingMoments::At(std::size_t i) const {
+  // A compare, not a division: head_ + cap − count_ + i < 2·cap always.
   const std::size_t cap = buffer_.size();
-  return buffer_[(head_ + cap - count_ + i) % cap];
+  const std::size_t slot = head_ + cap - count_ + i;
+  return buffer_[slot >= cap ? slot - cap : slot];
 }
 
 double RollingMoments::Oldest() const { return At(0); }
 
 double RollingMoments::Newest() const {
-  const std::size_t cap = buffer_.size();
-  return buffer_[(head_ + cap - 1) % cap];
+  return buffer_[head_ == 0 ? buffer_.size() - 1 : head_ - 1];
 }
 
 void RollingMoments::CopyInOrder(std::vector<double>* out) const {
