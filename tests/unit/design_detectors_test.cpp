@@ -96,16 +96,28 @@ TEST_CASE("DesignDetectors is exact for the default targets and never fails", "[
 
 TEST_CASE("DesignCache returns the very values it memoises, per distinct input", "[design]") {
   DesignCache cache;
-  const DetectorDesign& a = cache.Get(1.0, 120.0, 1.0);
-  const DetectorDesign direct = DesignDetectors(1.0, 120.0, 1.0);
-  CHECK(a.cusum_h == direct.cusum_h);
-  CHECK(a.ewma_limit == direct.ewma_limit);
-  CHECK(&cache.Get(1.0, 120.0, 1.0) == &a);  // computed once
-  CHECK(cache.Get(1.0, 60.0, 1.0).arl0_packs == DesignDetectors(1.0, 60.0, 1.0).arl0_packs);
+  const ShiftCusumDesign& a = cache.ShiftCusum(1.0, 120.0, 1.0);
+  CHECK(a.h == DesignShiftCusum(1.0, 120.0, 1.0).h);
+  CHECK(&cache.ShiftCusum(1.0, 120.0, 1.0) == &a);  // computed once
+  CHECK(cache.ShiftCusum(1.0, 60.0, 1.0).h == DesignShiftCusum(1.0, 60.0, 1.0).h);
   CHECK(cache.size() == 2);
   CHECK(cache.EwmaLimit(0.05, 20000.0) == EwmaChart::LimitForArl(0.05, 20000.0));
   CHECK(cache.EwmaLimit(0.1, 20000.0) == EwmaChart::LimitForArl(0.1, 20000.0));
   CHECK(cache.EwmaLimit(0.05, 20000.0) != cache.EwmaLimit(0.1, 20000.0));
+}
+
+TEST_CASE("DesignLineBudget gives DesignDetectors' budget and individuals limit", "[design]") {
+  // The same clamping too: a zero rate and a 20-sigma shift are brought into range.
+  for (const auto& [fa, rate, shift] :
+       {std::tuple{1.0, 120.0, 1.0}, std::tuple{0.5, 40.0, 0.7}, std::tuple{3.0, 600.0, 1.5},
+        std::tuple{1.0, 0.0, 20.0}, std::tuple{0.0, 90.0, 1.0}}) {
+    const LineBudget budget = DesignLineBudget(fa, rate, shift);
+    const DetectorDesign full = DesignDetectors(fa, rate, shift);
+    CHECK(budget.arl0_packs == full.arl0_packs);
+    CHECK(budget.individuals_limit == full.individuals_limit);
+  }
+  // 1 false alarm a day at 120 packs/min: 172,800 packs.
+  CHECK(DesignLineBudget(1.0, 120.0, 1.0).arl0_packs == Approx(172800.0));
 }
 
 TEST_CASE("DesignShiftCusum gives DesignDetectors' CUSUM, also through the cache", "[design]") {

@@ -4,18 +4,6 @@
 
 namespace heft {
 
-const DetectorDesign& DesignCache::Get(double false_alarms_per_day, double packs_per_minute,
-                                       double min_shift_sigma) {
-  const auto key = std::make_tuple(false_alarms_per_day, packs_per_minute, min_shift_sigma);
-  auto it = designs_.find(key);
-  if (it == designs_.end()) {
-    it = designs_
-             .emplace(key, DesignDetectors(false_alarms_per_day, packs_per_minute, min_shift_sigma))
-             .first;
-  }
-  return it->second;
-}
-
 double DesignCache::EwmaLimit(double lambda, double arl0) {
   const auto key = std::make_pair(lambda, arl0);
   auto it = ewma_limits_.find(key);

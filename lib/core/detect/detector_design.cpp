@@ -134,6 +134,16 @@ DesignTargets ClampedTargets(double false_alarms_per_day, double packs_per_minut
 }
 }  // namespace
 
+LineBudget DesignLineBudget(double false_alarms_per_day, double packs_per_minute,
+                            double min_shift_sigma) {
+  const DesignTargets targets =
+      ClampedTargets(false_alarms_per_day, packs_per_minute, min_shift_sigma);
+  LineBudget b;
+  b.arl0_packs = targets.packs_per_minute * 60.0 * 24.0 / targets.false_alarms_per_day;
+  b.individuals_limit = IndividualsLimit(b.arl0_packs / kIndividualsBudgetShare);
+  return b;
+}
+
 ShiftCusumDesign DesignShiftCusum(double false_alarms_per_day, double packs_per_minute,
                                   double min_shift_sigma) {
   const DesignTargets targets =

@@ -83,11 +83,24 @@ inline constexpr double kDriftLambdaGrid[] = {0.02, 0.03, 0.05, 0.075, 0.1};
 // The full design with checked inputs; errors say which input is wrong and why.
 Status DesignLineDetectors(const DesignTargets& targets, DetectorDesign* out);
 
-// LineMonitor's entry point: never fails. Inputs are clamped to sane ranges
-// (rate ≥ 1/min, 1e-3 ≤ false alarms/day, 0.1 ≤ shift ≤ 5); if the exact
-// design still fails it falls back to Siegmund's h and `exact` is false.
+// The full design that never fails (for planning: `heft design`, reports). Inputs
+// are clamped to sane ranges (rate ≥ 1/min, 1e-3 ≤ false alarms/day, 0.1 ≤ shift
+// ≤ 5); if the exact design still fails it falls back to Siegmund's h and `exact`
+// is false.
 DetectorDesign DesignDetectors(double false_alarms_per_day, double packs_per_minute,
                                double min_shift_sigma);
+
+// What a LineMonitor needs at construction, with DesignDetectors' clamping and
+// figures: the line's in-control ARL budget and the individuals limit. The shift
+// CUSUM is designed when the detectors are armed (DesignShiftCusum, for the learnt
+// autocorrelation) and the drift EWMA's λ comes from the settings, so DesignDetectors'
+// delays and λ search (tens of milliseconds) are not needed to run a line.
+struct LineBudget {
+  double arl0_packs = 0;         // in-control ARL for the whole line, packs
+  double individuals_limit = 3;  // L in σ for single wild packs
+};
+LineBudget DesignLineBudget(double false_alarms_per_day, double packs_per_minute,
+                            double min_shift_sigma);
 
 // Only the shift CUSUM of DesignDetectors (the same clamping, the same exact design,
 // the same Siegmund fallback): what a line redesigns once its autocorrelation is

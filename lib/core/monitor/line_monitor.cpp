@@ -60,37 +60,28 @@ double MeanVarianceFactor(int n, double phi) {
   }
   return std::max(0.1, s);
 }
-// A design from the shared cache when there is one.
-DetectorDesign Design(DesignCache* designs, double false_alarms_per_day, double packs_per_minute,
-                      double min_shift_sigma) {
-  if (designs != nullptr)
-    return designs->Get(false_alarms_per_day, packs_per_minute, min_shift_sigma);
-  return DesignDetectors(false_alarms_per_day, packs_per_minute, min_shift_sigma);
-}
 }  // namespace
 
 LineMonitor::LineMonitor(std::string line, const LineSettings& settings, DesignCache* designs)
     : line_(std::move(line)),
       settings_(settings),
       designs_(designs),
-      design_(Design(designs, settings.false_alarms_per_day, settings.pack_rate_per_min,
-                     settings.min_shift_sigma)),
-      cusum_up_(design_.cusum_k, design_.cusum_h),
-      cusum_down_(design_.cusum_k, design_.cusum_h),
-      // L for the EWMA's share, by the Brook–Evans chain (ewma_chart.h). λ and L are
-      // computed here because DetectorDesign does not carry them (yet).
+      budget_(DesignLineBudget(settings.false_alarms_per_day, settings.pack_rate_per_min,
+                               settings.min_shift_sigma)),
+      cusum_up_(cusum_k_, cusum_h_),  // designed in ArmDetectors, once settled
+      cusum_down_(cusum_k_, cusum_h_),
+      // λ from the settings; L for the EWMA's share of the budget, by the Brook–Evans
+      // chain (ewma_chart.h), memoised per plant.
       ewma_(settings.drift_lambda,
             designs
-                ? designs->EwmaLimit(settings.drift_lambda, kEwmaShare * design_.arl0_packs)
-                : EwmaChart::LimitForArl(settings.drift_lambda, kEwmaShare * design_.arl0_packs)),
+                ? designs->EwmaLimit(settings.drift_lambda, kEwmaShare * budget_.arl0_packs)
+                : EwmaChart::LimitForArl(settings.drift_lambda, kEwmaShare * budget_.arl0_packs)),
       head_cusums_(0, 1.0, 6.0),
       rules_(RunRuleSettings::Published()),
       spread_(5, 0.5, 5.0),
       cycles_(CycleWindow(settings)),
       stuck_(settings.stuck_packs),
       recent_(kRecentWindow) {
-  cusum_k_ = design_.cusum_k;
-  cusum_h_ = design_.cusum_h;
   learn_capacity_ = static_cast<std::size_t>(std::max(
       {4 * std::max(30, settings_.baseline_packs), settings_.settling_alarm_packs + 300, 600}));
   learn_values_.reserve(learn_capacity_);
@@ -100,9 +91,9 @@ LineMonitor::LineMonitor(std::string line, const LineSettings& settings, DesignC
   ring_white_.resize(cycles_.window());
   cycle_buffer_.resize(cycles_.window());
   scratch_.reserve(cycles_.window());
-  stuck_chance_ = 1.0 / (kMinorShare * design_.arl0_packs);
+  stuck_chance_ = 1.0 / (kMinorShare * budget_.arl0_packs);
   const double hop = std::max(1, settings_.cycle_every_packs);
-  cycle_p_threshold_ = hop / (kMinorShare * design_.arl0_packs);
+  cycle_p_threshold_ = hop / (kMinorShare * budget_.arl0_packs);
 }
 
 Finding LineMonitor::Make(Transition transition, FindingKind kind, Severity severity,
@@ -321,7 +312,7 @@ void LineMonitor::ArmDetectors() {
 
   if (heads_ >= 2) {
     head_k_ = std::max(0.25, settings_.head_shift_sigma / 2.0);
-    head_h_ = CusumDecisionInterval(head_k_, kMinorShare * design_.arl0_packs);
+    head_h_ = CusumDecisionInterval(head_k_, kMinorShare * budget_.arl0_packs);
     head_cusums_ = HeadCusums(heads_, head_k_, head_h_);
     head_relative_scale_ = 1.0 / std::sqrt(1.0 + 1.0 / static_cast<double>(heads_ - 1));
   } else {
@@ -332,7 +323,7 @@ void LineMonitor::ArmDetectors() {
   subgroup_count_ = 0;
   subgroup_sum_ = 0.0;
   RunRuleSettings rs =
-      RunRuleSettings::ForInControlArl(kMinorShare * design_.arl0_packs / subgroup_n_);
+      RunRuleSettings::ForInControlArl(kMinorShare * budget_.arl0_packs / subgroup_n_);
   if (settings_.run_one_side_count > 0) rs.one_side_run = settings_.run_one_side_count;
   if (settings_.run_trend_count > 0) rs.trend_run = settings_.run_trend_count;
   if (settings_.run_sawtooth_count > 0) rs.sawtooth_run = settings_.run_sawtooth_count;
@@ -347,7 +338,7 @@ void LineMonitor::ArmDetectors() {
     const double shift = 2.0 * std::log(std::max(1.01, settings_.spread_ratio)) / probe.LogSd();
     spread_k_ = shift / 2.0;
     // One-sided ARL A is about twice the two-sided one the design function solves for.
-    spread_h_ = CusumDecisionInterval(spread_k_, 0.5 * kMinorShare * design_.arl0_packs / spread_n);
+    spread_h_ = CusumDecisionInterval(spread_k_, 0.5 * kMinorShare * budget_.arl0_packs / spread_n);
   }
   spread_ = LogVarianceCusum(spread_n, spread_k_, spread_h_,
                              LogVarianceCusum::ExpectedVarianceRatio(spread_n, baseline_.phi()));
@@ -436,7 +427,7 @@ void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
   // While a mean change is open, wild packs are judged from the level it moved to.
   const bool mean_open = open_[Slot(FindingKind::kShift)] || open_[Slot(FindingKind::kDrift)];
   const double centre = mean_open ? mean_clear_ewma_ : 0.0;
-  if (std::fabs(z - centre) > design_.individuals_limit) {
+  if (std::fabs(z - centre) > budget_.individuals_limit) {
     NoteOutlier(pack, "individuals_limit", out);
     const int side = z > centre ? 1 : -1;
     outlier_side_run_ = (outlier_side_run_ * side > 0) ? outlier_side_run_ + side : side;
@@ -446,7 +437,7 @@ void LineMonitor::Run(const Pack& pack, std::vector<Finding>* out) {
       RefreshBaseline(pack, false);
       return;
     }
-    z = std::clamp(z, centre - design_.individuals_limit, centre + design_.individuals_limit);
+    z = std::clamp(z, centre - budget_.individuals_limit, centre + budget_.individuals_limit);
     outlier = true;
   } else {
     outlier_side_run_ = 0;
