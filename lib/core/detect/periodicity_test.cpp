@@ -19,13 +19,23 @@ PeriodicityTest::PeriodicityTest(std::size_t window, std::size_t skip_bins) {
     const double a = -2.0 * std::numbers::pi * static_cast<double>(k) / static_cast<double>(n_);
     twiddle_[k] = {std::cos(a), std::sin(a)};
   }
-  // Each butterfly stage's twiddles side by side (stage of length len at offset
-  // len/2 − 1), copied from the table above so the values are the very same: the
-  // inner loop then reads them in order instead of with a stride.
-  stage_twiddle_.clear();
-  for (std::size_t len = 2; len <= half; len *= 2) {
-    const std::size_t step = 2 * (half / len);
-    for (std::size_t j = 0; j < len / 2; ++j) stage_twiddle_.push_back(twiddle_[j * step]);
+  // Butterfly passes: two radix-2 stages fused into one (radix-2², same bit-reversed
+  // input order), so each pass reads and writes the data once for two stages and
+  // needs three twiddle products per four points instead of four. With an odd
+  // number of stages a plain radix-2 pass of length 2 goes first. Each fused pass of
+  // length L keeps W^j, W^{2j}, W^{3j} (W = e^{−2πi/L}, j < L/4) side by side.
+  std::size_t stages = 0;
+  while ((std::size_t{1} << stages) < half) ++stages;
+  first_len_ = stages % 2 == 1 ? 8 : 4;
+  pass_twiddle_.clear();
+  for (std::size_t len = first_len_; len <= half; len *= 4) {
+    for (std::size_t j = 0; j < len / 4; ++j) {
+      for (std::size_t power = 1; power <= 3; ++power) {
+        const double a =
+            -2.0 * std::numbers::pi * static_cast<double>(power * j) / static_cast<double>(len);
+        pass_twiddle_.push_back({std::cos(a), std::sin(a)});
+      }
+    }
   }
   skip_ = std::min(skip_bins, n_ / 4);
   reversed_.resize(half);
@@ -58,30 +68,52 @@ PeriodicityResult PeriodicityTest::Evaluate(std::span<const double> values) {
     data_[reversed_[i]] = {values[2 * i] - mean - slope * (even - t_mean),
                            values[2 * i + 1] - mean - slope * (odd - t_mean)};
   }
-  // Iterative Cooley–Tukey of size N/2 (its twiddles are every other one of size N);
+  // Iterative Cooley–Tukey of size N/2 in radix-2² passes (see the constructor);
   // complex products written out (std::complex's operator* checks for NaN/∞ and is
   // several times slower).
   std::complex<double>* d = data_.data();
   const std::complex<double>* w = twiddle_.data();
-  // First stage: the twiddle is 1.
-  for (std::size_t start = 0; start < half; start += 2) {
-    const std::complex<double> u = d[start], t = d[start + 1];
-    d[start] = {u.real() + t.real(), u.imag() + t.imag()};
-    d[start + 1] = {u.real() - t.real(), u.imag() - t.imag()};
+  if (first_len_ == 8) {  // odd stage count: one radix-2 pass, twiddle 1
+    for (std::size_t start = 0; start < half; start += 2) {
+      const std::complex<double> u = d[start], t = d[start + 1];
+      d[start] = {u.real() + t.real(), u.imag() + t.imag()};
+      d[start + 1] = {u.real() - t.real(), u.imag() - t.imag()};
+    }
   }
-  for (std::size_t len = 4; len <= half; len *= 2) {
-    const std::size_t half_len = len / 2;
-    const std::complex<double>* sw = stage_twiddle_.data() + (half_len - 1);
+  const std::complex<double>* pw = pass_twiddle_.data();
+  for (std::size_t len = first_len_; len <= half; len *= 4) {
+    const std::size_t quarter = len / 4;
     for (std::size_t start = 0; start < half; start += len) {
-      for (std::size_t j = 0; j < half_len; ++j) {
-        const double wr = sw[j].real(), wi = sw[j].imag();
-        const double xr = d[start + j + half_len].real(), xi = d[start + j + half_len].imag();
-        const double tr = wr * xr - wi * xi, ti = wr * xi + wi * xr;
-        const double ur = d[start + j].real(), ui = d[start + j].imag();
-        d[start + j + half_len] = {ur - tr, ui - ti};
-        d[start + j] = {ur + tr, ui + ti};
+      std::complex<double>* p0 = d + start;
+      std::complex<double>* p1 = p0 + quarter;
+      std::complex<double>* p2 = p1 + quarter;
+      std::complex<double>* p3 = p2 + quarter;
+      for (std::size_t j = 0; j < quarter; ++j) {
+        const std::complex<double>* tw = pw + 3 * j;
+        const double w1r = tw[0].real(), w1i = tw[0].imag();
+        const double w2r = tw[1].real(), w2i = tw[1].imag();
+        const double w3r = tw[2].real(), w3i = tw[2].imag();
+        const double ar = p0[j].real(), ai = p0[j].imag();
+        const double br = p1[j].real(), bi = p1[j].imag();
+        const double cr = p2[j].real(), ci = p2[j].imag();
+        const double er = p3[j].real(), ei = p3[j].imag();
+        // Stage L/2 pairs (a, b) and (c, e) with W^{2j}; stage L pairs the results with
+        // W^j and W^{j+L/4} = −i·W^j, which W^j·c ± W^{3j}·e gives with three products.
+        const double tbr = w2r * br - w2i * bi, tbi = w2r * bi + w2i * br;
+        const double xr = w1r * cr - w1i * ci, xi = w1r * ci + w1i * cr;
+        const double yr = w3r * er - w3i * ei, yi = w3r * ei + w3i * er;
+        const double a1r = ar + tbr, a1i = ai + tbi;
+        const double b1r = ar - tbr, b1i = ai - tbi;
+        const double pr = xr + yr, pi = xi + yi;
+        const double qr = xr - yr, qi = xi - yi;
+        p0[j] = {a1r + pr, a1i + pi};
+        p2[j] = {a1r - pr, a1i - pi};
+        // −i·q = (qi, −qr)
+        p1[j] = {b1r + qi, b1i - qr};
+        p3[j] = {b1r - qi, b1i + qr};
       }
     }
+    pw += 3 * quarter;
   }
   // Untangle: with Z the half-size transform, E = (Z[k] + conj Z[N/2−k]) / 2 and
   // O = (Z[k] − conj Z[N/2−k]) / 2i are the even and odd samples' transforms, and

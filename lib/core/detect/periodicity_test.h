@@ -1,7 +1,7 @@
 // periodicity_test.h — is there a cycle in the last N values, and how long is it?
 //
 // Periodogram Iₖ = |Σ xₜ e^{−2πikt/N}|² / N of a window of N (a power of two)
-// values, by an in-place radix-2 FFT on buffers allocated once. Significance by
+// values, by an in-place radix-2² FFT on buffers allocated once. Significance by
 // Fisher's g test (Fisher 1929): g = max Iₖ / Σ Iₖ over the m = N/2 − 1 interior
 // Fourier frequencies, P(g > x) ≈ m(1 − x)^{m−1} under white noise (first term of the
 // exact series; accurate in the small-p tail we use). The Nyquist ordinate (period 2,
@@ -46,7 +46,8 @@ class PeriodicityTest {
   std::size_t skip_;
   std::vector<std::complex<double>> data_;
   std::vector<std::complex<double>> twiddle_;
-  std::vector<std::complex<double>> stage_twiddle_;  // per butterfly stage, contiguous
+  std::vector<std::complex<double>> pass_twiddle_;  // per radix-2² pass: W^j, W^2j, W^3j
+  std::size_t first_len_ = 4;                       // length of the first fused pass
   std::vector<std::size_t> reversed_;
   std::vector<double> power_;
 };
