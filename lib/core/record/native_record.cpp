@@ -12,6 +12,9 @@
 #include <cstdint>
 #include <cstring>
 #include <system_error>
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#endif
 
 namespace heft {
 namespace {
@@ -381,29 +384,87 @@ std::string_view RecordErrorName(RecordError error) {
 // no blanks, no unit and no status, read in one pass with the same field parsers as
 // below. Anything else (or anything wrong) returns false and the general path
 // decides, so a record this accepts is one that path accepts with the same fields.
+#if defined(__SSE2__)
+// Bytes of x in [lo, hi] as 0xFF (ASCII bounds: bytes from 0x80 up are negative as
+// signed bytes and fall outside every range).
+inline __m128i InRange(__m128i x, char lo, char hi) {
+  return _mm_and_si128(_mm_cmpgt_epi8(x, _mm_set1_epi8(static_cast<char>(lo - 1))),
+                       _mm_cmpgt_epi8(_mm_set1_epi8(static_cast<char>(hi + 1)), x));
+}
+inline unsigned Bits(__m128i mask) { return static_cast<unsigned>(_mm_movemask_epi8(mask)); }
+
+// The common line id and head ("line,head,") from sixteen bytes at once: the bytes
+// before the first comma must all be line-id characters (kLineIdChars) and those
+// between the first and second comma digits. Returns false when the two commas are
+// not both within the sixteen bytes (the scalar scan decides then), else sets *ok.
+inline bool LineAndHeadBlock(const char* p, std::size_t* line_len, std::size_t* head_end,
+                             bool* ok) {
+  const __m128i x = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p));
+  const unsigned comma = Bits(_mm_cmpeq_epi8(x, _mm_set1_epi8(',')));
+  const unsigned first = comma & (0u - comma);  // lowest set bit
+  const unsigned second = comma & ~(first | (first - 1));
+  if (first == 0 || second == 0) return false;
+  // Line-id characters: letters (either case, folded by OR 0x20), '-' to '9' except
+  // '/' (that is "-.0123456789"), and '_'.
+  const __m128i digit = InRange(x, '0', '9');
+  const __m128i letter = InRange(_mm_or_si128(x, _mm_set1_epi8(0x20)), 'a', 'z');
+  const __m128i dash_to_nine =
+      _mm_andnot_si128(_mm_cmpeq_epi8(x, _mm_set1_epi8('/')), InRange(x, '-', '9'));
+  const unsigned id =
+      Bits(_mm_or_si128(_mm_or_si128(letter, dash_to_nine), _mm_cmpeq_epi8(x, _mm_set1_epi8('_'))));
+  const unsigned digits = Bits(digit);
+  const unsigned before_first = first - 1;
+  const unsigned head_bits = (second - 1) & ~(first | before_first);
+  *line_len = static_cast<std::size_t>(std::countr_zero(first));
+  *head_end = static_cast<std::size_t>(std::countr_zero(second));
+  *ok = before_first != 0 && (id & before_first) == before_first && head_bits != 0 &&
+        (digits & head_bits) == head_bits;
+  return true;
+}
+#endif
+
 bool ParseCommonShape(std::string_view text, RecordView* out) {
   const std::size_t n = text.size();
   if (n < 26 || text[4] != '-') return false;  // 20-char time, then ",l,h,w" at least
-  // Time: up to the first comma (an ISO time holds none).
-  std::size_t i = 20;
-  while (i < n && text[i] != ',') ++i;
+  // Time: up to the first comma (an ISO time holds none); at 24 for ".fffZ".
+  std::size_t i = 24;
+  if (text[24] != ',') {
+    i = 20;
+    while (i < n && text[i] != ',') ++i;
+  }
   if (i >= n || !ParseIsoTime(text.substr(0, i), &out->time_ms)) return false;
-  // Line id: line-id characters up to the next comma.
   const std::size_t line_start = ++i;
-  while (i < n && IsLineIdChar(text[i])) ++i;
-  if (i >= n || text[i] != ',' || i == line_start || i - line_start > kMaxLineIdLength) {
-    return false;
+  std::size_t head_start = 0;
+  bool scanned = false;
+#if defined(__SSE2__)
+  std::size_t line_len = 0, head_end = 0;
+  bool ok = false;
+  if (line_start + 16 <= n &&
+      LineAndHeadBlock(text.data() + line_start, &line_len, &head_end, &ok)) {
+    if (!ok) return false;
+    out->line = text.substr(line_start, line_len);
+    head_start = line_start + line_len + 1;
+    i = line_start + head_end;
+    scanned = true;
   }
-  out->line = text.substr(line_start, i - line_start);
-  // Head: one or more digits up to the next comma.
-  const std::size_t head_start = ++i;
+#endif
+  if (!scanned) {
+    // Line id: line-id characters up to the next comma.
+    while (i < n && IsLineIdChar(text[i])) ++i;
+    if (i >= n || text[i] != ',' || i == line_start || i - line_start > kMaxLineIdLength) {
+      return false;
+    }
+    out->line = text.substr(line_start, i - line_start);
+    // Head: one or more digits up to the next comma.
+    head_start = ++i;
+    while (i < n && IsDigit(text[i])) ++i;
+    if (i >= n || text[i] != ',' || i == head_start) return false;
+  }
   int head = 0;
-  while (i < n && IsDigit(text[i])) {
-    head = head * 10 + (text[i] - '0');
+  for (std::size_t k = head_start; k < i; ++k) {
+    head = head * 10 + (text[k] - '0');
     if (head > kMaxHead) return false;
-    ++i;
   }
-  if (i >= n || text[i] != ',' || i == head_start) return false;
   out->head = head;
   // Weight: a plain decimal that ends the record.
   const std::string_view weight = text.substr(i + 1);
