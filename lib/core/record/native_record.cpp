@@ -180,32 +180,36 @@ enum class WeightError { kNone, kNumber, kUnit };
 std::size_t ParsePlainDecimal(std::string_view s, double* value) {
   static constexpr double kPow10[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
                                       1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
-  std::size_t i = 0;
-  const bool negative = !s.empty() && s[0] == '-';
-  if (negative) ++i;
-  std::int64_t mantissa = 0;
-  int digits = 0, fraction_digits = 0;
-  const std::size_t int_start = i;
-  while (i < s.size() && IsDigit(s[i])) {
-    mantissa = mantissa * 10 + (s[i++] - '0');
-    ++digits;
-    if (digits > 15) return 0;
+  const char* p = s.data();
+  const char* const end = p + s.size();
+  const bool negative = p < end && *p == '-';
+  if (negative) ++p;
+  // Unsigned, so that a long run of digits wraps harmlessly before the count check.
+  std::uint64_t mantissa = 0;
+  const char* const int_start = p;
+  while (p < end && static_cast<unsigned char>(*p - '0') < 10) {
+    mantissa = mantissa * 10 + static_cast<unsigned>(*p - '0');
+    ++p;
   }
-  if (i == int_start) return 0;  // ".5", "-": the general parser decides
-  if (i < s.size() && s[i] == '.') {
-    const std::size_t frac_start = ++i;
-    while (i < s.size() && IsDigit(s[i])) {
-      mantissa = mantissa * 10 + (s[i++] - '0');
-      ++digits;
-      if (digits > 15) return 0;
+  const std::size_t int_digits = static_cast<std::size_t>(p - int_start);
+  if (int_digits == 0) return 0;  // ".5", "-": the general parser decides
+  std::size_t fraction_digits = 0;
+  if (p < end && *p == '.') {
+    const char* const frac_start = ++p;
+    while (p < end && static_cast<unsigned char>(*p - '0') < 10) {
+      mantissa = mantissa * 10 + static_cast<unsigned>(*p - '0');
+      ++p;
     }
-    fraction_digits = static_cast<int>(i - frac_start);
+    fraction_digits = static_cast<std::size_t>(p - frac_start);
     if (fraction_digits == 0) return 0;  // "5."
   }
-  if (i < s.size() && (s[i] == 'e' || s[i] == 'E')) return 0;
-  const double magnitude = static_cast<double>(mantissa) / kPow10[fraction_digits];
+  if (int_digits + fraction_digits > 15) return 0;
+  if (p < end && (*p == 'e' || *p == 'E')) return 0;
+  // At most 15 digits: exact as a signed integer, which converts in one instruction.
+  const double magnitude =
+      static_cast<double>(static_cast<std::int64_t>(mantissa)) / kPow10[fraction_digits];
   *value = negative ? -magnitude : magnitude;
-  return i;
+  return static_cast<std::size_t>(p - s.data());
 }
 
 WeightError ParseWeight(std::string_view s, double* grams) {
