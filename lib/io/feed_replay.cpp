@@ -14,7 +14,10 @@
 namespace heft {
 namespace {
 
-constexpr std::size_t kChunkBytes = 1 << 20;
+// Small enough to stay in L2 while its records are parsed (a 1 MiB chunk streamed
+// through the cache and evicted the lines' state; the kernel copy took 4 % of replay
+// time with it, 2.4 % with this).
+constexpr std::size_t kChunkBytes = 1 << 16;
 
 class ReplayListener : public IngestListener {
  public:
