@@ -47,8 +47,7 @@ struct FileCloser {
 Status ReplayFeed(const std::string& path, const PlantSettings& settings,
                   const ReplayCallbacks& callbacks, ReplayResult* result,
                   const SourceSettings* source) {
-  std::unique_ptr<std::FILE, FileCloser> file(path == "-" ? stdin
-                                                          : std::fopen(path.c_str(), "rb"));
+  std::unique_ptr<std::FILE, FileCloser> file(path == "-" ? stdin : std::fopen(path.c_str(), "rb"));
   if (!file) return Status::Error(path + ": cannot open: " + std::strerror(errno));
 
   Plant plant(settings);
