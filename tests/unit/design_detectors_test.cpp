@@ -106,29 +106,23 @@ TEST_CASE("DesignCache returns the very values it memoises, per distinct input",
   CHECK(cache.EwmaLimit(0.05, 20000.0) != cache.EwmaLimit(0.1, 20000.0));
 }
 
-TEST_CASE("DesignLineBudget gives DesignDetectors' budget and individuals limit", "[design]") {
-  // The same clamping too: a zero rate and a 20-sigma shift are brought into range.
-  for (const auto& [fa, rate, shift] :
-       {std::tuple{1.0, 120.0, 1.0}, std::tuple{0.5, 40.0, 0.7}, std::tuple{3.0, 600.0, 1.5},
-        std::tuple{1.0, 0.0, 20.0}, std::tuple{0.0, 90.0, 1.0}}) {
-    const LineBudget budget = DesignLineBudget(fa, rate, shift);
-    const DetectorDesign full = DesignDetectors(fa, rate, shift);
-    CHECK(budget.arl0_packs == full.arl0_packs);
-    CHECK(budget.individuals_limit == full.individuals_limit);
-  }
-  // 1 false alarm a day at 120 packs/min: 172,800 packs.
-  CHECK(DesignLineBudget(1.0, 120.0, 1.0).arl0_packs == Approx(172800.0));
-}
-
-TEST_CASE("DesignShiftCusum gives DesignDetectors' CUSUM, also through the cache", "[design]") {
+TEST_CASE("A line's pieces of the design are DesignDetectors' own, also through the cache",
+          "[design]") {
+  // The budget, individuals limit and shift CUSUM a line runs on, against the full
+  // design; with the same clamping (a zero rate, a 20-sigma shift, no false alarms).
   DesignCache cache;
   for (const auto& [fa, rate, shift] :
        {std::tuple{1.0, 120.0, 1.0}, std::tuple{1.0, 120.0, 0.85}, std::tuple{0.5, 40.0, 0.7},
-        std::tuple{3.0, 600.0, 1.5}, std::tuple{1.0, 0.0, 20.0}}) {
+        std::tuple{3.0, 600.0, 1.5}, std::tuple{1.0, 0.0, 20.0}, std::tuple{0.0, 90.0, 1.0}}) {
     const DetectorDesign full = DesignDetectors(fa, rate, shift);
+    const LineBudget budget = DesignLineBudget(fa, rate, shift);
+    CHECK(budget.arl0_packs == full.arl0_packs);
+    CHECK(budget.individuals_limit == full.individuals_limit);
     const ShiftCusumDesign alone = DesignShiftCusum(fa, rate, shift);
     CHECK(alone.k == full.cusum_k);
     CHECK(alone.h == full.cusum_h);
     CHECK(cache.ShiftCusum(fa, rate, shift).h == full.cusum_h);
   }
+  // 1 false alarm a day at 120 packs/min: 172,800 packs.
+  CHECK(DesignLineBudget(1.0, 120.0, 1.0).arl0_packs == Approx(172800.0));
 }
