@@ -69,7 +69,6 @@ class LineMonitor {
 
   const std::string& line() const { return line_; }
   const LineSettings& settings() const { return settings_; }
-  const LineBudget& budget() const { return budget_; }
   bool has_packs() const { return packs_ > 0; }
   bool silent() const { return open_[static_cast<int>(FindingKind::kSilence)]; }
   bool is_open(FindingKind kind) const { return open_[static_cast<int>(kind)]; }
@@ -134,7 +133,7 @@ class LineMonitor {
   std::string line_;
   LineSettings settings_;
   DesignCache* designs_ = nullptr;  // borrowed; may be null
-  LineBudget budget_;
+  LineBudget budget_;               // ARL budget and individuals limit (DesignLineBudget)
 
   Phase phase_ = Phase::kSettling;
   std::int64_t packs_ = 0;
