@@ -27,12 +27,6 @@ std::string G(double v) {
   return buffer;
 }
 
-// log(ARL) − log(target); non-finite ARLs count as "too large".
-double LogGap(double arl, double target) {
-  if (!std::isfinite(arl)) return 1e3;
-  return std::log(arl) - std::log(target);
-}
-
 }  // namespace
 
 Status CusumDecisionIntervalForArl(double k, double target_arl0, double* h) {
@@ -49,7 +43,7 @@ Status CusumDecisionIntervalForArl(double k, double target_arl0, double* h) {
     return Status::Error("target in-control ARL " + G(target_arl0) + " packs is not above " +
                          G(floor_arl) + ", the ARL at h = 0 for k = " + G(k));
   }
-  auto f = [&](double x) { return LogGap(CusumTwoSidedArl(k, x, 0.0), target_arl0); };
+  auto f = [&](double x) { return LogArlGap(CusumTwoSidedArl(k, x, 0.0), target_arl0); };
   double lo = 0.0, f_lo = std::log(floor_arl) - std::log(target_arl0);
   double hi = 4.0, f_hi = f(hi);
   while (f_hi < 0.0) {  // ARL grows at least like e^{2k·h}: doubling h brackets fast
@@ -94,7 +88,7 @@ Status EwmaLimitForArl(double lambda, double target_arl0, double* limit) {
     return Status::Error("target in-control ARL " + G(target_arl0) +
                          " packs must be between 2 and " + G(kMaxArl));
   }
-  auto f = [&](double x) { return LogGap(EwmaArl(lambda, x, 0.0), target_arl0); };
+  auto f = [&](double x) { return LogArlGap(EwmaArl(lambda, x, 0.0), target_arl0); };
   // Bracket near the Shewhart limit for the same ARL (λ = 1), which is an upper
   // bound for smaller λ in practice; widen step by step if it is not.
   const double shewhart = std::max(0.5, boost::math::quantile(boost::math::complement(

@@ -36,4 +36,11 @@ inline double IllinoisRoot(const std::function<double(double)>& f, double lo, do
   return x;
 }
 
+// ln(arl) − ln(target), the function those solves take the root of; a non-finite or
+// non-positive ARL (a limit far too wide for the arithmetic) counts as far too large.
+inline double LogArlGap(double arl, double target) {
+  if (!std::isfinite(arl) || !(arl > 0.0)) return 1e3;
+  return std::log(arl) - std::log(target);
+}
+
 }  // namespace heft

@@ -88,11 +88,7 @@ double EwmaChart::Arl(double lambda, double limit_l, double delta, int cells) {
 double EwmaChart::LimitForArl(double lambda, double arl0, int cells) {
   // ln ARL is smooth and nearly quadratic in L: the Illinois method needs a dozen
   // chain solves where bisection over [0.5, 8] to the same 1e-9 needed forty.
-  // A non-finite ARL (a limit far too wide) counts as too large.
-  auto gap = [&](double limit) {
-    const double arl = Arl(lambda, limit, 0.0, cells);
-    return std::isfinite(arl) && arl > 0.0 ? std::log(arl) - std::log(arl0) : 1e3;
-  };
+  auto gap = [&](double limit) { return LogArlGap(Arl(lambda, limit, 0.0, cells), arl0); };
   const double lo = 0.5, hi = 8.0;
   const double f_lo = gap(lo), f_hi = gap(hi);
   if (!(f_lo < 0.0)) return lo;

@@ -192,7 +192,7 @@ class LineMonitor {
   double head_h_ = 6.0;
   HeadCusums head_cusums_;
   std::vector<double> head_allow_;    // per-head offset standard errors, σ units
-  double head_relative_scale_ = 1.0;  // 1/√(1 + 1/(heads − 1)): sd of z − mean of others
+  double head_relative_scale_ = 1.0;  // 1/√(1 + 1/(heads − 1)) = 1/sd(z − others' mean)
   // The head named by the open oscillation finding and how far it sits from the other
   // heads (z units): the spread detector sees that head's packs re-centred, so one
   // bad head, already reported, does not also read as rising spread over and over.
