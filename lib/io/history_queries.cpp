@@ -190,8 +190,23 @@ Status HistoryReader::LineStates(std::vector<LineState>* out) {
     state.configured = true;
     state.line = std::move(row);
   }
-  // Lines seen in samples: walk the distinct ids by index seeks.
-  {
+  // Lines seen in samples. Version 6 lists its line names (those with rows left
+  // after pruning); older files walk the distinct ids by index seeks.
+  if (impl_->store->schema_version() >= 6) {
+    Statement names;
+    if (!names.Prepare(impl_->db,
+                       "SELECT line FROM sample_lines l WHERE EXISTS (SELECT 1 FROM sample_rows r "
+                       "WHERE r.line_id = l.id)")) {
+      return impl_->Error("reading sample lines");
+    }
+    int rc = SQLITE_OK;
+    while ((rc = sqlite3_step(names.get())) == SQLITE_ROW) {
+      std::string line = Text(names.get(), 0);
+      LineState& state = states[line];
+      if (state.line.line.empty()) state.line.line = std::move(line);
+    }
+    if (rc != SQLITE_DONE) return impl_->Error("reading sample lines");
+  } else {
     Statement first, next;
     if (!first.Prepare(impl_->db, "SELECT min(line) FROM samples") ||
         !next.Prepare(impl_->db, "SELECT min(line) FROM samples WHERE line > ?1")) {

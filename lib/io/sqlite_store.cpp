@@ -15,6 +15,7 @@
 #include <string_view>
 #include <unordered_map>
 #include <utility>
+#include <vector>
 
 #include <fmt/core.h>
 
@@ -161,6 +162,44 @@ CREATE TABLE line_checkpoints (
   blob     BLOB NOT NULL
 );
 )sql"},
+    // Version 6: raw samples name their line and source by a small integer
+    // (sample_lines, sample_sources) instead of repeating the text in every row
+    // and in the index. Rows are about 40% smaller and the insert costs less
+    // (measured: 1 M rows 1.3-1.6 s -> 1.0 s with the sqlite3 shell). The view
+    // `samples` keeps the old columns (and rowid), so a query written against
+    // version 5 reads a version 6 file unchanged.
+    {6, R"sql(
+CREATE TABLE sample_lines (
+  id   INTEGER PRIMARY KEY,
+  line TEXT NOT NULL UNIQUE
+);
+CREATE TABLE sample_sources (
+  id     INTEGER PRIMARY KEY,
+  source TEXT NOT NULL UNIQUE
+);
+CREATE TABLE sample_rows (
+  line_id      INTEGER NOT NULL,  -- sample_lines.id
+  source_id    INTEGER NOT NULL,  -- sample_sources.id
+  record_index INTEGER NOT NULL,
+  time_ms      INTEGER NOT NULL,
+  grams        REAL NOT NULL,
+  head         INTEGER,
+  status       INTEGER NOT NULL CHECK (status BETWEEN 0 AND 2)
+);
+INSERT INTO sample_lines(line) SELECT DISTINCT line FROM samples ORDER BY line;
+INSERT INTO sample_sources(source) SELECT DISTINCT source FROM samples ORDER BY source;
+INSERT INTO sample_rows(rowid, line_id, source_id, record_index, time_ms, grams, head, status)
+  SELECT s.rowid, l.id, o.id, s.record_index, s.time_ms, s.grams, s.head, s.status
+  FROM samples s JOIN sample_lines l ON l.line = s.line JOIN sample_sources o ON o.source = s.source
+  ORDER BY s.rowid;
+DROP TABLE samples;
+CREATE INDEX sample_rows_line_time ON sample_rows(line_id, time_ms);
+CREATE VIEW samples(rowid, line, source, record_index, time_ms, grams, head, status) AS
+  SELECT r.rowid, l.line, o.source, r.record_index, r.time_ms, r.grams, r.head, r.status
+  FROM sample_rows r
+  LEFT JOIN sample_lines l ON l.id = r.line_id
+  LEFT JOIN sample_sources o ON o.id = r.source_id;
+)sql"},
 };
 static_assert(std::size(kMigrations) == SqliteStore::kSchemaVersion,
               "one migration per schema version");
@@ -219,15 +258,23 @@ constexpr std::size_t kSampleRowsPerInsert = 64;
 
 std::string SampleInsertSql(std::size_t rows) {
   std::string sql =
-      "INSERT OR FAIL INTO samples(line, source, record_index, time_ms, grams, head, status) "
+      "INSERT OR FAIL INTO sample_rows(line_id, source_id, record_index, time_ms, grams, head, "
+      "status) "
       "VALUES ";
   for (std::size_t r = 0; r < rows; ++r) sql += r == 0 ? "(?,?,?,?,?,?,?)" : ",(?,?,?,?,?,?,?)";
   return sql;
 }
 
+// A sample row's line and source as sample_lines / sample_sources ids.
+struct SampleNameIds {
+  std::int64_t line = 0;
+  std::int64_t source = 0;
+};
+
 // Binds one sample to parameters first+1 .. first+kSampleColumns.
-int BindSample(sqlite3_stmt* stmt, int first, const SampleRow& row) {
-  return BindText(stmt, first + 1, row.line) | BindText(stmt, first + 2, row.source) |
+int BindSample(sqlite3_stmt* stmt, int first, const SampleRow& row, SampleNameIds ids) {
+  return sqlite3_bind_int64(stmt, first + 1, ids.line) |
+         sqlite3_bind_int64(stmt, first + 2, ids.source) |
          sqlite3_bind_int64(stmt, first + 3, row.record_index) |
          sqlite3_bind_int64(stmt, first + 4, row.time_ms) |
          sqlite3_bind_double(stmt, first + 5, row.grams) |
@@ -235,6 +282,18 @@ int BindSample(sqlite3_stmt* stmt, int first, const SampleRow& row) {
                               : sqlite3_bind_null(stmt, first + 6)) |
          sqlite3_bind_int(stmt, first + 7, static_cast<int>(row.status));
 }
+
+// Where a sample's line or source name gets its id (schema version 6).
+struct SampleNameTable {
+  const char* find_sql;
+  const char* add_sql;
+};
+constexpr SampleNameTable kSampleLines = {"SELECT id FROM sample_lines WHERE line = ?1",
+                                          "INSERT INTO sample_lines(line) VALUES (?1)"};
+constexpr SampleNameTable kSampleSources = {"SELECT id FROM sample_sources WHERE source = ?1",
+                                            "INSERT INTO sample_sources(source) VALUES (?1)"};
+// Each TCP connection is a new source name; past this many the cache starts over.
+constexpr std::size_t kMaxCachedSampleNames = 4096;
 
 // One connection with its statement cache. SqliteStore::Impl is this; the
 // helpers below work on it directly.
@@ -244,6 +303,12 @@ struct Connection {
   sqlite3* db = nullptr;
   int version = 0;
   std::unordered_map<std::string, sqlite3_stmt*> statements;  // cache, keyed by SQL text
+  // Sample name ids already in the file. Names are never renamed or deleted, so
+  // a committed id stays right; ids added by a transaction that rolled back are
+  // not, so a failed write forgets them all (ForgetSampleNameIds).
+  std::unordered_map<std::string, std::int64_t> line_ids;
+  std::unordered_map<std::string, std::int64_t> source_ids;
+  std::vector<SampleNameIds> sample_name_ids;  // WriteBatch's scratch, kept to reuse its memory
 
   ~Connection() {
     for (auto& [sql, stmt] : statements) sqlite3_finalize(stmt);
@@ -325,6 +390,15 @@ struct Connection {
   }
 
   Status Migrate(int target);
+
+  // The id of `name` in `table`, adding the name when new. Call inside the
+  // write transaction that stores the rows using it.
+  Status SampleNameId(const SampleNameTable& table, const std::string& name, std::int64_t* id);
+
+  void ForgetSampleNameIds() {
+    line_ids.clear();
+    source_ids.clear();
+  }
 };
 
 // Resets a cached statement and drops its bindings when the scope ends, so
@@ -390,6 +464,37 @@ Status Connection::Migrate(int target) {
     if (Status s = txn.Commit(operation); !s.ok()) return s;
     version = migration.version;
   }
+  return Status::Ok();
+}
+
+Status Connection::SampleNameId(const SampleNameTable& table, const std::string& name,
+                                std::int64_t* id) {
+  auto& cache = &table == &kSampleLines ? line_ids : source_ids;
+  if (auto it = cache.find(name); it != cache.end()) {
+    *id = it->second;
+    return Status::Ok();
+  }
+  constexpr std::string_view kOp = "naming samples";
+  sqlite3_stmt* find = nullptr;
+  if (Status s = Prepare(table.find_sql, &find); !s.ok()) return s;
+  StatementUse use_find(find);
+  if (BindText(find, 1, name) != SQLITE_OK) return Error(kOp);
+  const int rc = sqlite3_step(find);
+  if (rc == SQLITE_ROW) {
+    *id = sqlite3_column_int64(find, 0);
+  } else if (rc == SQLITE_DONE) {
+    sqlite3_stmt* add = nullptr;
+    if (Status s = Prepare(table.add_sql, &add); !s.ok()) return s;
+    StatementUse use_add(add);
+    if (BindText(add, 1, name) != SQLITE_OK || sqlite3_step(add) != SQLITE_DONE) {
+      return Error(fmt::format("{}: '{}'", kOp, name));
+    }
+    *id = sqlite3_last_insert_rowid(db);
+  } else {
+    return Error(kOp);
+  }
+  if (cache.size() >= kMaxCachedSampleNames) cache.clear();
+  cache.emplace(name, *id);
   return Status::Ok();
 }
 
@@ -536,6 +641,28 @@ Status SqliteStore::WriteBatch(const std::vector<EventRow>& events,
 
   Transaction txn(*impl_);
   if (Status s = txn.Begin(kOp); !s.ok()) return s;
+  // Name ids added in a transaction that rolls back are gone from the file.
+  bool committed = false;
+  struct ForgetIdsUnlessCommitted {
+    Connection& connection;
+    const bool& committed;
+    ~ForgetIdsUnlessCommitted() {
+      if (!committed) connection.ForgetSampleNameIds();
+    }
+  } forget{*impl_, committed};
+  std::vector<SampleNameIds>& ids = impl_->sample_name_ids;
+  ids.resize(samples.size());
+  for (std::size_t i = 0; i < samples.size(); ++i) {
+    // Consecutive rows mostly share a source: compare before hashing.
+    if (i > 0 && samples[i].source == samples[i - 1].source) {
+      ids[i].source = ids[i - 1].source;
+    } else if (Status s = impl_->SampleNameId(kSampleSources, samples[i].source, &ids[i].source);
+               !s.ok()) {
+      return s;
+    }
+    if (Status s = impl_->SampleNameId(kSampleLines, samples[i].line, &ids[i].line); !s.ok())
+      return s;
+  }
   for (std::size_t i = 0; i < events.size(); ++i) {
     const EventRow& row = events[i];
     const Finding& f = row.finding;
@@ -563,7 +690,8 @@ Status SqliteStore::WriteBatch(const std::vector<EventRow>& events,
     for (; i + kSampleRowsPerInsert <= samples.size(); i += kSampleRowsPerInsert) {
       int rc = SQLITE_OK;
       for (std::size_t j = 0; j < kSampleRowsPerInsert; ++j) {
-        rc |= BindSample(samples_stmt, static_cast<int>(j * kSampleColumns), samples[i + j]);
+        rc |= BindSample(samples_stmt, static_cast<int>(j * kSampleColumns), samples[i + j],
+                         ids[i + j]);
       }
       if (rc != SQLITE_OK || sqlite3_step(samples_stmt) != SQLITE_DONE) {
         return impl_->Error(fmt::format("{}: samples {}-{} of {}", kOp, i + 1,
@@ -574,12 +702,14 @@ Status SqliteStore::WriteBatch(const std::vector<EventRow>& events,
   }
   for (; i < samples.size(); ++i) {
     StatementUse use(sample_stmt);
-    if (BindSample(sample_stmt, 0, samples[i]) != SQLITE_OK ||
+    if (BindSample(sample_stmt, 0, samples[i], ids[i]) != SQLITE_OK ||
         sqlite3_step(sample_stmt) != SQLITE_DONE) {
       return impl_->Error(fmt::format("{}: sample {} of {}", kOp, i + 1, samples.size()));
     }
   }
-  return txn.Commit(kOp);
+  Status status = txn.Commit(kOp);
+  committed = status.ok();
+  return status;
 }
 
 Status SqliteStore::QueryEvents(const EventQuery& query, std::vector<EventRow>* out) {
@@ -663,8 +793,10 @@ Status SqliteStore::CountSamples(const std::string& line, std::int64_t* count) {
   constexpr std::string_view kOp = "counting samples";
   // An empty line id counts the samples of all lines (same as MemoryStore).
   sqlite3_stmt* stmt = nullptr;
-  if (Status s = impl_->Prepare(line.empty() ? "SELECT count(*) FROM samples"
-                                             : "SELECT count(*) FROM samples WHERE line = ?1",
+  // Version 6 counts the rows table: its view `samples` joins the names first.
+  const char* all =
+      impl_->version >= 6 ? "SELECT count(*) FROM sample_rows" : "SELECT count(*) FROM samples";
+  if (Status s = impl_->Prepare(line.empty() ? all : "SELECT count(*) FROM samples WHERE line = ?1",
                                 &stmt);
       !s.ok()) {
     return s;
@@ -680,44 +812,39 @@ Status SqliteStore::PruneSamples(std::int64_t cutoff_ms, std::int64_t* deleted) 
   constexpr std::string_view kOp = "pruning samples";
   if (deleted != nullptr) *deleted = 0;
   if (Status s = impl_->RequireWritable(kOp); !s.ok()) return s;
-  sqlite3_stmt* first_line = nullptr;
-  sqlite3_stmt* next_line = nullptr;
+  sqlite3_stmt* names = nullptr;
   sqlite3_stmt* remove = nullptr;
-  // Walking the distinct lines with min() seeks on the (line, time_ms) index
-  // instead of scanning the table; each delete batch then uses the same index.
-  if (Status s = impl_->Prepare("SELECT min(line) FROM samples", &first_line); !s.ok()) return s;
-  if (Status s = impl_->Prepare("SELECT min(line) FROM samples WHERE line > ?1", &next_line);
-      !s.ok()) {
+  // Line by line, so each delete batch is a range of the (line_id, time_ms) index.
+  if (Status s = impl_->Prepare("SELECT id, line FROM sample_lines ORDER BY id", &names); !s.ok())
     return s;
-  }
-  if (Status s = impl_->Prepare("DELETE FROM samples WHERE rowid IN (SELECT rowid FROM samples "
-                                "WHERE line = ?1 AND time_ms < ?2 LIMIT ?3)",
+  if (Status s = impl_->Prepare("DELETE FROM sample_rows WHERE rowid IN (SELECT rowid FROM "
+                                "sample_rows WHERE line_id = ?1 AND time_ms < ?2 LIMIT ?3)",
                                 &remove);
       !s.ok()) {
     return s;
   }
+  std::vector<std::pair<std::int64_t, std::string>> lines;
+  {
+    StatementUse use(names);
+    int rc = SQLITE_OK;
+    while ((rc = sqlite3_step(names)) == SQLITE_ROW) {
+      lines.emplace_back(sqlite3_column_int64(names, 0), ColumnText(names, 1));
+    }
+    if (rc != SQLITE_DONE) return impl_->Error(kOp);
+  }
 
   std::int64_t total = 0;
-  std::optional<std::string> line;
-  while (true) {
-    {
-      sqlite3_stmt* stmt = line ? next_line : first_line;
-      StatementUse use(stmt);
-      if (line && BindText(stmt, 1, *line) != SQLITE_OK) return impl_->Error(kOp);
-      if (sqlite3_step(stmt) != SQLITE_ROW) return impl_->Error(kOp);
-      if (sqlite3_column_type(stmt, 0) == SQLITE_NULL) break;
-      line = std::string(ColumnText(stmt, 0));
-    }
+  for (const auto& [line_id, line] : lines) {
     while (true) {
       Transaction txn(*impl_);
       if (Status s = txn.Begin(kOp); !s.ok()) return s;
       std::int64_t changes = 0;
       {
         StatementUse use(remove);
-        if ((BindText(remove, 1, *line) | sqlite3_bind_int64(remove, 2, cutoff_ms) |
+        if ((sqlite3_bind_int64(remove, 1, line_id) | sqlite3_bind_int64(remove, 2, cutoff_ms) |
              sqlite3_bind_int(remove, 3, kPruneBatchRows)) != SQLITE_OK ||
             sqlite3_step(remove) != SQLITE_DONE) {
-          return impl_->Error(fmt::format("{}: line '{}'", kOp, *line));
+          return impl_->Error(fmt::format("{}: line '{}'", kOp, line));
         }
         changes = sqlite3_changes64(impl_->db);
       }

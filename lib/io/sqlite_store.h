@@ -14,7 +14,7 @@ namespace heft {
 
 class SqliteStore : public Store {
  public:
-  static constexpr int kSchemaVersion = 5;
+  static constexpr int kSchemaVersion = 6;
 
   enum class Mode { kReadWrite, kReadOnly };
 

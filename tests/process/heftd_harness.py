@@ -178,7 +178,12 @@ def count_samples(db):
     try:
         con = sqlite3.connect("file:%s?mode=ro" % db, uri=True, timeout=2)
         try:
-            return con.execute("SELECT COUNT(*) FROM samples").fetchone()[0]
+            # Schema 6 keeps the rows in sample_rows; its view `samples` would
+            # join every row to its names just to count them.
+            lean = con.execute("SELECT count(*) FROM sqlite_master WHERE name = 'sample_rows'"
+                               ).fetchone()[0]
+            table = "sample_rows" if lean else "samples"
+            return con.execute("SELECT COUNT(*) FROM " + table).fetchone()[0]
         finally:
             con.close()
     except sqlite3.Error:

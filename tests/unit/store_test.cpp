@@ -838,7 +838,7 @@ TEST_CASE("SqliteStore migrates a version 4 database to version 5 (line checkpoi
   }
   {
     auto store = OpenOrFail(path);
-    CHECK(store->schema_version() == 5);
+    CHECK(store->schema_version() == SqliteStore::kSchemaVersion);
     // Binary blobs (NUL bytes included) come back byte for byte; a save replaces the set.
     const std::string blob("hLCP\0\x01\xff rest", 12);
     REQUIRE(store
@@ -860,11 +860,73 @@ TEST_CASE("SqliteStore migrates a version 4 database to version 5 (line checkpoi
     CHECK(rows[1].blob == blob);
   }
   RawDb raw(path);
-  CHECK(raw.Int("PRAGMA user_version") == 5);
+  CHECK(raw.Int("PRAGMA user_version") == SqliteStore::kSchemaVersion);
   CHECK(raw.Int("SELECT count(*) FROM line_checkpoints") == 2);
   // The primary key refuses a second row for a line.
   CHECK(raw.Int("SELECT count(*) FROM pragma_index_list('line_checkpoints') WHERE origin = 'pk'") ==
         1);
+}
+
+TEST_CASE("SqliteStore migrates a version 5 database to version 6 (sample name ids)", "[store]") {
+  TempDir dir;
+  const std::string path = dir.File("heft.db");
+  REQUIRE(SqliteStore::CreateAtVersion(path, 5).ok());
+  {
+    // Rows as a version 5 heft wrote them, rowids with a gap (an earlier prune).
+    RawDb raw(path);
+    raw.Exec(
+        "INSERT INTO samples(rowid, line, source, record_index, time_ms, grams, head, status) "
+        "VALUES (10, 'oats-1', 'tcp:127.0.0.1:41234', 0, 1772431200000, 500.5, 3, 0), "
+        "(11, 'honey-2', 'serial:/dev/ttyUSB0', 0, 1772431200100, 341.25, NULL, 1), "
+        "(15, 'oats-1', 'tcp:127.0.0.1:41234', 1, 1772431200600, 499.75, 4, 2)");
+  }
+  {
+    // Read-only on the old file: counts work and nothing changes.
+    auto reader = OpenOrFail(path, SqliteStore::Mode::kReadOnly);
+    CHECK(reader->schema_version() == 5);
+    std::int64_t count = -1;
+    REQUIRE(reader->CountSamples("", &count).ok());
+    CHECK(count == 3);
+  }
+  {
+    auto store = OpenOrFail(path);
+    CHECK(store->schema_version() == 6);
+    std::int64_t count = -1;
+    REQUIRE(store->CountSamples("", &count).ok());
+    CHECK(count == 3);
+    REQUIRE(store->CountSamples("oats-1", &count).ok());
+    CHECK(count == 2);
+    // New rows reuse the migrated names and add new ones.
+    REQUIRE(store
+                ->WriteBatch({}, {{"oats-1", "tcp:127.0.0.1:41234", 2, 1772431201100, 500.0, 5,
+                                   PackStatus::kOk},
+                                  {"bran-3", "tcp:127.0.0.1:41300", 0, 1772431201200, 250.0,
+                                   kNoHead, PackStatus::kOk}})
+                .ok());
+    REQUIRE(store->CountSamples("oats-1", &count).ok());
+    CHECK(count == 3);
+  }
+  RawDb raw(path);
+  CHECK(raw.Int("PRAGMA user_version") == 6);
+  CHECK(raw.Int("SELECT count(*) FROM sample_lines") == 3);
+  CHECK(raw.Int("SELECT count(*) FROM sample_sources") == 3);
+  CHECK(raw.Int("SELECT count(*) FROM sqlite_master WHERE name = 'samples_line_time'") == 0);
+  CHECK(raw.Text("SELECT type FROM sqlite_master WHERE name = 'samples'") == "view");
+  // The view gives every row back as version 5 stored it, old rowids kept.
+  CHECK(raw.Text("SELECT group_concat(rowid || ' ' || line || ' ' || source || ' ' || "
+                 "record_index || ' ' || time_ms || ' ' || grams || ' ' || ifnull(head, '-') || "
+                 "' ' || status, '; ') FROM (SELECT * FROM samples ORDER BY rowid)") ==
+        "10 oats-1 tcp:127.0.0.1:41234 0 1772431200000 500.5 3 0; "
+        "11 honey-2 serial:/dev/ttyUSB0 0 1772431200100 341.25 - 1; "
+        "15 oats-1 tcp:127.0.0.1:41234 1 1772431200600 499.75 4 2; "
+        "16 oats-1 tcp:127.0.0.1:41234 2 1772431201100 500.0 5 0; "
+        "17 bran-3 tcp:127.0.0.1:41300 0 1772431201200 250.0 - 0");
+  // A look-up by line name through the view still walks the (line_id, time_ms) index.
+  const std::string plan = raw.Plan(
+      "SELECT time_ms, grams FROM samples WHERE line = 'oats-1' AND time_ms >= 0 AND "
+      "time_ms < 1772431201000 ORDER BY time_ms, rowid");
+  INFO(plan);
+  CHECK(plan.find("sample_rows_line_time") != std::string::npos);
 }
 
 TEST_CASE("MemoryStore keeps line checkpoints like SqliteStore", "[store][checkpoint]") {
