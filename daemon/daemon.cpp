@@ -63,14 +63,43 @@ Daemon::Daemon(Config config, const Clock& clock)
 
 Daemon::~Daemon() = default;
 
+// Opening read-write migrates an older file, and version 6 copies every raw
+// sample: minutes on a large file. Say so, and ask the service manager for the
+// time (start timeout and watchdog; the tick that pings it is not running yet),
+// so it does not kill heftd half-way and roll the upgrade back on every restart.
+bool Daemon::AnnounceSchemaUpgrade(const std::string& database) {
+  std::unique_ptr<SqliteStore> reader;
+  if (!SqliteStore::Open(database, SqliteStore::Mode::kReadOnly, &reader).ok()) return false;
+  const int version = reader->schema_version();
+  reader.reset();
+  if (version >= SqliteStore::kSchemaVersion) return false;
+  spdlog::info(
+      "database {}: upgrading schema {} -> {}; raw samples are copied once, which can take "
+      "minutes on a large file",
+      database, version, SqliteStore::kSchemaVersion);
+  constexpr long long kUpgradeAllowanceUs = 3'600'000'000;  // an hour
+  std::string message =
+      fmt::format("STATUS=upgrading database schema {} -> {}\nEXTEND_TIMEOUT_USEC={}", version,
+                  SqliteStore::kSchemaVersion, kUpgradeAllowanceUs);
+  const bool watchdog = notifier_->watchdog_interval().count() > 0;
+  if (watchdog) message += fmt::format("\nWATCHDOG=1\nWATCHDOG_USEC={}", kUpgradeAllowanceUs);
+  notifier_->Notify(message);
+  return watchdog;
+}
+
 Status Daemon::Start() {
   if (notifier_ == nullptr) {
     own_notifier_ = std::make_unique<SdNotifier>();
     notifier_ = own_notifier_.get();
   }
   const StorageSettings& storage = config_.storage;
+  const bool watchdog_stretched = AnnounceSchemaUpgrade(storage.database);
   std::unique_ptr<SqliteStore> sqlite;
   Status status = SqliteStore::Open(storage.database, SqliteStore::Mode::kReadWrite, &sqlite);
+  if (watchdog_stretched) {  // the configured watchdog timeout again
+    notifier_->Notify(
+        fmt::format("WATCHDOG=1\nWATCHDOG_USEC={}", notifier_->watchdog_interval().count()));
+  }
   if (!status.ok()) {
     return Status::Error("cannot open database " + storage.database + ": " + status.message());
   }

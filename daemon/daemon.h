@@ -98,6 +98,9 @@ class Daemon {
   // Retention: deletes raw samples older than storage.raw_retention_days.
   void PruneSamples();
   void NotifyStatus(std::string_view prefix);
+  // Before opening read-write: when the file's schema is older, logs the upgrade
+  // and asks the service manager for time. True when it stretched the watchdog.
+  bool AnnounceSchemaUpgrade(const std::string& database);
   void ArmTick();
   // The housekeeping tick. Jobs: (1) warn when the loop stalled (tick late by
   // more than kTickLateWarning); (2) LineEngine::AdvanceClock for silence.

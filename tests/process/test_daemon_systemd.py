@@ -31,6 +31,7 @@ import time
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import heftd_harness as h  # noqa: E402
+from test_events_command import SCHEMA_V1, T0  # noqa: E402
 
 LINES = """\
   - id: oats-1
@@ -163,10 +164,58 @@ def journal_priorities(args, tmp):
     h.check(proc.returncode == 0, "journal run: SIGTERM, exit 0")
 
 
+def schema_upgrade(args, tmp):
+    """A database from an older heft: before the upgrade (which copies every raw
+    sample) heftd says so in STATUS= and asks for time, EXTEND_TIMEOUT_USEC and
+    a longer watchdog, then puts the configured watchdog back; the old sample
+    reads back through the new schema."""
+    db = os.path.join(tmp, "old.db")
+    con = sqlite3.connect(db)
+    con.executescript(SCHEMA_V1)
+    con.execute("INSERT INTO samples VALUES ('oats-1', 'tcp:127.0.0.1:40000', 7, ?, 500.5, 3, 0)",
+                (T0,))
+    con.commit()
+    con.close()
+    config = os.path.join(tmp, "old.yaml")
+    h.write_config(config, db)
+    listener = NotifyListener(os.path.join(tmp, "old-notify.sock"))
+    os.environ["NOTIFY_SOCKET"] = listener.sock.getsockname()
+    os.environ["WATCHDOG_USEC"] = "2000000"
+    os.environ.pop("WATCHDOG_PID", None)
+    d = h.Daemon(args.build_dir, config, db)
+    try:
+        d.wait_listening()
+        ready = listener.wait("READY=1")
+        h.check(ready is not None, "READY=1 after the upgrade")
+        version = sqlite3.connect(db).execute("PRAGMA user_version").fetchone()[0]
+        first = listener.messages[0].split("\n")
+        h.check("STATUS=upgrading database schema 1 -> %d" % version in first and
+                "EXTEND_TIMEOUT_USEC=3600000000" in first and "WATCHDOG_USEC=3600000000" in first,
+                "first message: upgrading 1 -> %d, more start time and watchdog (%s)"
+                % (version, first))
+        restored = listener.wait("WATCHDOG_USEC=2000000", seconds=0)
+        h.check(restored is not None and restored < ready,
+                "the configured watchdog timeout is back before READY=1")
+        h.check(d.wait_for(r"upgrading schema 1 -> %d; raw samples are copied once" % version)
+                is not None, "the upgrade is logged")
+        row = sqlite3.connect(db).execute(
+            "SELECT line, source, record_index, time_ms, grams, head, status FROM samples").fetchall()
+        h.check(row == [("oats-1", "tcp:127.0.0.1:40000", 7, T0, 500.5, 3, 0)],
+                "the old sample reads back through the view (%s)" % row)
+        h.check(d.terminate() == 0, "SIGTERM: exit 0")
+    except BaseException:
+        d.dump_log()
+        raise
+    finally:
+        d.kill()
+        listener.sock.close()
+
+
 def body(args):
     tmp = tempfile.mkdtemp(prefix="heftd-systemd-")
     verify_unit(args, tmp)
     journal_priorities(args, tmp)
+    schema_upgrade(args, tmp)
     db = os.path.join(tmp, "heft.db")
     config = os.path.join(tmp, "heftd.yaml")
     notify_path = os.path.join(tmp, "notify.sock")
