@@ -164,6 +164,14 @@ def journal_priorities(args, tmp):
     h.check(proc.returncode == 0, "journal run: SIGTERM, exit 0")
 
 
+def start_notified(args, config, db, listener):
+    """heftd with `listener` as its NOTIFY_SOCKET and a 2 s watchdog."""
+    os.environ["NOTIFY_SOCKET"] = listener.sock.getsockname()
+    os.environ["WATCHDOG_USEC"] = "2000000"
+    os.environ.pop("WATCHDOG_PID", None)
+    return h.Daemon(args.build_dir, config, db)
+
+
 def schema_upgrade(args, tmp):
     """A database from an older heft: before the upgrade (which copies every raw
     sample) heftd says so in STATUS= and asks for time, EXTEND_TIMEOUT_USEC and
@@ -179,10 +187,7 @@ def schema_upgrade(args, tmp):
     config = os.path.join(tmp, "old.yaml")
     h.write_config(config, db)
     listener = NotifyListener(os.path.join(tmp, "old-notify.sock"))
-    os.environ["NOTIFY_SOCKET"] = listener.sock.getsockname()
-    os.environ["WATCHDOG_USEC"] = "2000000"
-    os.environ.pop("WATCHDOG_PID", None)
-    d = h.Daemon(args.build_dir, config, db)
+    d = start_notified(args, config, db, listener)
     try:
         d.wait_listening()
         ready = listener.wait("READY=1")
@@ -221,10 +226,7 @@ def body(args):
     notify_path = os.path.join(tmp, "notify.sock")
     listener = NotifyListener(notify_path)
     h.write_config(config, db, lines_yaml=LINES.format(oats_target=503))
-    os.environ["NOTIFY_SOCKET"] = notify_path
-    os.environ["WATCHDOG_USEC"] = "2000000"
-    os.environ.pop("WATCHDOG_PID", None)
-    d = h.Daemon(args.build_dir, config, db)
+    d = start_notified(args, config, db, listener)
     try:
         d.wait_listening()
         ready = listener.wait("READY=1")
