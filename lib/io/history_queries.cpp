@@ -192,7 +192,7 @@ Status HistoryReader::LineStates(std::vector<LineState>* out) {
   }
   // Lines seen in samples. Version 6 lists its line names (those with rows left
   // after pruning); older files walk the distinct ids by index seeks.
-  if (impl_->store->schema_version() >= 6) {
+  if (impl_->store->schema_version() >= SqliteStore::kSampleRowsVersion) {
     Statement names;
     if (!names.Prepare(impl_->db,
                        "SELECT line FROM sample_lines l WHERE EXISTS (SELECT 1 FROM sample_rows r "

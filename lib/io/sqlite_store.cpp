@@ -794,8 +794,8 @@ Status SqliteStore::CountSamples(const std::string& line, std::int64_t* count) {
   // An empty line id counts the samples of all lines (same as MemoryStore).
   sqlite3_stmt* stmt = nullptr;
   // Version 6 counts the rows table: its view `samples` joins the names first.
-  const char* all =
-      impl_->version >= 6 ? "SELECT count(*) FROM sample_rows" : "SELECT count(*) FROM samples";
+  const char* all = impl_->version >= kSampleRowsVersion ? "SELECT count(*) FROM sample_rows"
+                                                         : "SELECT count(*) FROM samples";
   if (Status s = impl_->Prepare(line.empty() ? all : "SELECT count(*) FROM samples WHERE line = ?1",
                                 &stmt);
       !s.ok()) {

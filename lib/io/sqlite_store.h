@@ -15,6 +15,9 @@ namespace heft {
 class SqliteStore : public Store {
  public:
   static constexpr int kSchemaVersion = 6;
+  // From this version raw samples live in sample_rows (names by id); `samples`
+  // is a view over it. Readers of older files keep to the `samples` table.
+  static constexpr int kSampleRowsVersion = 6;
 
   enum class Mode { kReadWrite, kReadOnly };
 
